@@ -27,7 +27,8 @@ beforeAll(async () => {
 	await orm.close(true);
 	process.env.DATABASE_URL = db.url;
 	// The real worker entry point, as its own process, exactly as `npm run worker` starts it.
-	worker = spawn('npx', ['tsx', 'scripts/worker.ts'], {
+	// `node --import tsx` keeps it one process, so the signal reaches the worker itself.
+	worker = spawn(process.execPath, ['--import', 'tsx', 'scripts/worker.ts'], {
 		env: { ...process.env, DATABASE_URL: db.url },
 		stdio: ['ignore', 'pipe', 'pipe']
 	});
@@ -39,7 +40,7 @@ beforeAll(async () => {
 afterAll(async () => {
 	const { stopBoss } = await import('../../src/lib/server/jobs/boss');
 	await stopBoss();
-	if (worker && worker.exitCode === null) {
+	if (worker && worker.exitCode === null && worker.signalCode === null) {
 		worker.kill('SIGTERM');
 		await new Promise((r) => worker.once('exit', r));
 	}
@@ -63,6 +64,44 @@ describe('job queue', () => {
 		// Completed by the worker process, not by this test process.
 		expect(results[0]?.pid).toBeGreaterThan(0);
 		expect(results[0]?.pid).not.toBe(process.pid);
+	});
+
+	it('commits or rolls back a job together with the rows of the same transaction', async () => {
+		const { getBoss } = await import('../../src/lib/server/jobs/boss');
+		const { transactionalDb } = await import('../../src/lib/server/jobs/transactional');
+		const { forkEm } = await import('../../src/lib/server/db/orm');
+		const boss = await getBoss();
+		const em = await forkEm();
+		const conn = em.getConnection();
+		let rolledBackJob: string | null = null;
+		await expect(
+			em.transactional(async (tx) => {
+				await tx.getConnection().execute(
+					`insert into app_user (email, name) values ('tx-rollback@x.test', 'R')`,
+					[],
+					'run',
+					tx.getTransactionContext()
+				);
+				rolledBackJob = await boss.send(QUEUES.ping, { nonce: 'rolled-back' }, { db: transactionalDb(tx) });
+				throw new Error('abort the write');
+			})
+		).rejects.toThrow('abort the write');
+		expect(rolledBackJob).toBeTruthy();
+		expect(await boss.getJobById(QUEUES.ping, rolledBackJob!)).toBeNull();
+		expect(await conn.execute(`select 1 from app_user where email = 'tx-rollback@x.test'`)).toEqual([]);
+
+		let committedJob: string | null = null;
+		await em.transactional(async (tx) => {
+			await tx.getConnection().execute(
+				`insert into app_user (email, name) values ('tx-commit@x.test', 'C')`,
+				[],
+				'run',
+				tx.getTransactionContext()
+			);
+			committedJob = await boss.send(QUEUES.ping, { nonce: 'committed' }, { db: transactionalDb(tx) });
+		});
+		expect(await boss.getJobById(QUEUES.ping, committedJob!)).not.toBeNull();
+		expect(await conn.execute(`select 1 from app_user where email = 'tx-commit@x.test'`)).toHaveLength(1);
 	});
 
 	it('stops the worker cleanly on SIGTERM', async () => {
