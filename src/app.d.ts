@@ -1,5 +1,5 @@
 // See https://svelte.dev/docs/kit/types#app.d.ts
-import type { Role } from '$lib/server/db/entities';
+import type { Role, Scope } from '$lib/auth/roles';
 
 declare global {
 	namespace App {
@@ -12,7 +12,7 @@ declare global {
 			/** The signed-in user (from the session cookie or a bearer token), read fresh each request. */
 			user: { id: string; email: string; name: string; role: Role } | null;
 			/** Scopes granted to this request: a session has all its role allows; a token its own. */
-			scopes: ('read' | 'upload')[];
+			scopes: Scope[];
 			requestId: string;
 		}
 		// interface PageData {}

@@ -1,13 +1,23 @@
+import type { ServerInit } from '@sveltejs/kit';
 import { sequence } from '@sveltejs/kit/hooks';
 import { building } from '$app/environment';
 import { handleRequestId } from '$lib/server/hooks/request-id';
 import { handleSecurityHeaders } from '$lib/server/hooks/security-headers';
+import { handleAuth } from '$lib/server/hooks/auth';
+import { authSecret, oidcSettings } from '$lib/server/config';
 import { closeOrm } from '$lib/server/db/orm';
 import { stopBoss } from '$lib/server/jobs/boss';
 
 export { handleError } from '$lib/server/hooks/error';
 
-export const handle = sequence(handleRequestId, handleSecurityHeaders);
+// Refuse to start with a missing AUTH_SECRET in production (or half an SSO configuration)
+// rather than fail on the first sign-in.
+export const init: ServerInit = async () => {
+	authSecret();
+	oidcSettings();
+};
+
+export const handle = sequence(handleRequestId, handleSecurityHeaders, handleAuth);
 
 if (!building) {
 	// adapter-node emits this on SIGINT/SIGTERM once requests have drained; without closing the

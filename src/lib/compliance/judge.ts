@@ -89,7 +89,8 @@ function check(
 	const w = result.worstCase;
 	const atMost = criterion === 'peakSensitivity';
 	const base = {
-		required: threshold,
+		// Numeric columns read back with their full scale ("45.000000000"); show the value.
+		required: new Decimal(threshold).toString(),
 		comparison: atMost ? ('at most' as const) : ('at least' as const),
 		fromCase: w.from[SOURCE_FIELD[criterion]]
 	};
@@ -116,7 +117,7 @@ function checkBand(targets: Targets, result: MarginsResult): Omit<CriterionResul
 	const min = targets.crossoverMinHz;
 	const max = targets.crossoverMaxHz;
 	if (!present(min) && !present(max)) return null;
-	const required = `${present(min) ? min : '0'}–${present(max) ? max : '∞'}`;
+	const required = `${present(min) ? new Decimal(min).toString() : '0'}–${present(max) ? new Decimal(max).toString() : '∞'}`;
 	const base = { required, comparison: 'within' as const };
 	const span = crossoverSpan(result);
 	if (!span) return { ...base, status: 'fail', actual: null, shortfall: null, note: 'no gain crossover' };

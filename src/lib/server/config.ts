@@ -46,3 +46,47 @@ export function mailFrom(): string {
 export function isProduction(): boolean {
 	return process.env.NODE_ENV === 'production';
 }
+
+/** The public URL users reach; links in e-mails point here. adapter-node reads the same variable. */
+export function appOrigin(): string {
+	return (process.env.ORIGIN || `http://127.0.0.1:${process.env.PORT || 3000}`).replace(/\/$/, '');
+}
+
+// Only ever used outside production: sessions signed with it are worthless anywhere else.
+const DEVELOPMENT_AUTH_SECRET = 'headroom-development-only-secret-not-for-production';
+
+/** Signs and encrypts session cookies. Required in production: refusing to start beats forgeable sessions. */
+export function authSecret(): string {
+	const secret = process.env.AUTH_SECRET;
+	if (secret) {
+		if (isProduction() && secret.length < 32) {
+			throw new Error('AUTH_SECRET must be at least 32 characters (openssl rand -base64 33).');
+		}
+		return secret;
+	}
+	if (isProduction()) {
+		throw new Error('AUTH_SECRET is not set: it is required when NODE_ENV=production (see .env.example).');
+	}
+	return DEVELOPMENT_AUTH_SECRET;
+}
+
+export interface OidcSettings {
+	issuer: string;
+	clientId: string;
+	clientSecret: string;
+	/** Shown on the sign-in button, e.g. the company's IdP name. */
+	name: string;
+}
+
+/** Single sign-on through a generic OpenID Connect provider; off unless OIDC_ISSUER is set. */
+export function oidcSettings(): OidcSettings | undefined {
+	const issuer = process.env.OIDC_ISSUER;
+	if (!issuer) return undefined;
+	return {
+		// Kept exactly as given: the id token's `iss` must match it character for character.
+		issuer,
+		clientId: required('OIDC_CLIENT_ID'),
+		clientSecret: required('OIDC_CLIENT_SECRET'),
+		name: process.env.OIDC_NAME || 'Company single sign-on'
+	};
+}

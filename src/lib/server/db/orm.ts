@@ -1,6 +1,7 @@
 import { MikroORM, type EntityManager } from '@mikro-orm/postgresql';
 import { databaseUrl } from '../config';
 import { ormOptions } from './options';
+import { installQueues } from '../jobs/boss';
 
 let shared: Promise<MikroORM> | undefined;
 
@@ -26,8 +27,9 @@ export async function closeOrm(): Promise<void> {
 	await orm?.close(true);
 }
 
-/** Apply every pending migration; returns the names applied. */
+/** Apply every pending migration and install the job queues; returns the migrations applied. */
 export async function migrate(orm: MikroORM): Promise<string[]> {
 	const applied = await orm.getMigrator().up();
+	await installQueues(orm.config.get('clientUrl')!);
 	return applied.map((m) => m.name);
 }

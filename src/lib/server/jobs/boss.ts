@@ -47,6 +47,39 @@ export function getBoss(): Promise<PgBoss> {
 	return webBoss;
 }
 
+let sender: PgBoss | undefined;
+
+/**
+ * A never-started instance that only builds pg-boss's statements: every send through it passes
+ * the caller's transaction as `db`, so it needs no pool (and works in any process, tests too).
+ */
+export function txSender(): PgBoss {
+	sender ??= new PgBoss({
+		schema: BOSS_SCHEMA,
+		db: {
+			executeSql: () => {
+				throw new Error('txSender() sends only with an explicit { db } (a transaction).');
+			}
+		}
+	});
+	return sender;
+}
+
+/**
+ * Install pg-boss's schema and our queues (idempotent); part of migrating a database, so a job
+ * can be enqueued in a transaction before any worker has ever started.
+ */
+export async function installQueues(connectionString: string): Promise<void> {
+	const boss = new PgBoss({ connectionString, schema: BOSS_SCHEMA, supervise: false, schedule: false, migrate: true, max: 2 });
+	boss.on('error', (error) => console.error('[jobs] install:', error.message));
+	await boss.start();
+	try {
+		await createQueues(boss);
+	} finally {
+		await boss.stop({ graceful: false, wait: true });
+	}
+}
+
 export async function stopBoss(): Promise<void> {
 	if (!webBoss) return;
 	const boss = await webBoss.catch(() => undefined);

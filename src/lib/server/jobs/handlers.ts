@@ -1,10 +1,67 @@
 import type PgBoss from 'pg-boss';
-import { QUEUES, type PingData } from './queues';
+import { forkEm } from '../db/orm';
+import { computeRevision } from '../revisions/compute';
+import { reconcileStorage } from '../revisions/reconcile';
+import { notifyVerdict } from '../verdicts/notify';
+import { expireDeviations, rejudgeClass, rejudgeLoops } from '../verdicts/rejudge';
+import {
+	QUEUES,
+	SCHEDULES,
+	type ComputeRevisionData,
+	type NotifyVerdictData,
+	type PingData,
+	type QueueName,
+	type RejudgeClassData,
+	type RejudgeLoopsData
+} from './queues';
+
+const describe = (error: unknown) => (error instanceof Error ? error.message : String(error)).slice(0, 500);
+
+/**
+ * Run each job of a fetched batch on its own EntityManager; a failing job is failed alone (and
+ * retried by pg-boss with backoff) instead of failing the jobs that happened to share its batch.
+ */
+function each<T extends object>(boss: PgBoss, name: QueueName, run: (data: T, job: PgBoss.Job<T>) => Promise<unknown>) {
+	return async (jobs: PgBoss.Job<T>[]) => {
+		for (const job of jobs) {
+			try {
+				const output = await run(job.data, job);
+				await boss.complete(name, job.id, { output });
+			} catch (error) {
+				console.error(`[jobs] ${name} ${job.id} failed:`, describe(error));
+				await boss.fail(name, job.id, { message: describe(error) });
+			}
+		}
+	};
+}
 
 /** Register every handler on a started worker boss. */
-export async function registerHandlers(boss: PgBoss): Promise<void> {
+export async function registerHandlers(boss: PgBoss, options: { origin: string }): Promise<void> {
 	await boss.work<PingData>(QUEUES.ping, { pollingIntervalSeconds: 0.5 }, async (jobs) => {
 		// The output is stored by pg-boss and read back by whoever sent the ping.
 		return jobs.map((job) => ({ nonce: job.data.nonce, pid: process.pid }));
 	});
+	await boss.work<ComputeRevisionData>(
+		QUEUES.computeRevision,
+		{ pollingIntervalSeconds: 0.5, batchSize: 8 },
+		each(boss, QUEUES.computeRevision, async ({ revisionId }) => computeRevision(await forkEm(), revisionId))
+	);
+	await boss.work<RejudgeClassData>(
+		QUEUES.rejudgeClass,
+		{ pollingIntervalSeconds: 1 },
+		each(boss, QUEUES.rejudgeClass, async ({ classId, cause }) => (await rejudgeClass(await forkEm(), classId, cause)).length)
+	);
+	await boss.work<RejudgeLoopsData>(
+		QUEUES.rejudgeLoops,
+		{ pollingIntervalSeconds: 1 },
+		each(boss, QUEUES.rejudgeLoops, async ({ loopIds, cause }) => (await rejudgeLoops(await forkEm(), loopIds, cause)).length)
+	);
+	await boss.work<NotifyVerdictData>(
+		QUEUES.notifyVerdict,
+		{ pollingIntervalSeconds: 2 },
+		each(boss, QUEUES.notifyVerdict, async ({ eventId }) => notifyVerdict(await forkEm(), eventId, options.origin))
+	);
+	await boss.work(QUEUES.expireDeviations, { pollingIntervalSeconds: 5 }, each(boss, QUEUES.expireDeviations, async () => expireDeviations(await forkEm())));
+	await boss.work(QUEUES.reconcileStorage, { pollingIntervalSeconds: 5 }, each(boss, QUEUES.reconcileStorage, async () => reconcileStorage(await forkEm())));
+	for (const [name, cron] of Object.entries(SCHEDULES)) await boss.schedule(name, cron);
 }

@@ -5,17 +5,51 @@ import type PgBoss from 'pg-boss';
  * (`npm run worker`) create the queues and run the handlers. Names are ours.
  */
 export const QUEUES = {
-	/** A no-op round trip through the queue, used by health checks and the wiring test. */
-	ping: 'system.ping'
+	/** A no-op round trip through the queue, used by the wiring test. */
+	ping: 'system.ping',
+	computeRevision: 'revision.compute',
+	rejudgeClass: 'verdict.rejudge-class',
+	rejudgeLoops: 'verdict.rejudge-loops',
+	notifyVerdict: 'verdict.notify',
+	expireDeviations: 'deviation.expire',
+	reconcileStorage: 'storage.reconcile'
 } as const;
 
 export type QueueName = (typeof QUEUES)[keyof typeof QUEUES];
 
 export const QUEUE_OPTIONS: Record<QueueName, Omit<PgBoss.Queue, 'name'>> = {
-	[QUEUES.ping]: { retryLimit: 2, retryDelay: 1, retryBackoff: true, expireInSeconds: 60 }
+	[QUEUES.ping]: { retryLimit: 2, retryDelay: 1, retryBackoff: true, expireInSeconds: 60 },
+	// A worker killed mid-job leaves the job active until it expires; then pg-boss retries it.
+	[QUEUES.computeRevision]: { retryLimit: 5, retryDelay: 2, retryBackoff: true, expireInSeconds: 60 },
+	[QUEUES.rejudgeClass]: { retryLimit: 5, retryDelay: 2, retryBackoff: true, expireInSeconds: 300 },
+	[QUEUES.rejudgeLoops]: { retryLimit: 5, retryDelay: 2, retryBackoff: true, expireInSeconds: 300 },
+	// Mail outages can last: keep trying for about a day before giving up (the outbox row stays).
+	[QUEUES.notifyVerdict]: { retryLimit: 30, retryDelay: 30, retryBackoff: true, expireInSeconds: 60 },
+	[QUEUES.expireDeviations]: { retryLimit: 2, retryDelay: 10, expireInSeconds: 300 },
+	[QUEUES.reconcileStorage]: { retryLimit: 2, retryDelay: 10, expireInSeconds: 600 }
+};
+
+/** Cron schedules of the periodic jobs (run by whichever worker's clock fires first). */
+export const SCHEDULES: Partial<Record<QueueName, string>> = {
+	[QUEUES.expireDeviations]: '* * * * *',
+	[QUEUES.reconcileStorage]: '*/5 * * * *'
 };
 
 export interface PingData {
 	/** Echoed back in the job's output so a caller can recognise its own job. */
 	nonce: string;
+}
+export interface ComputeRevisionData {
+	revisionId: string;
+}
+export interface RejudgeClassData {
+	classId: string;
+	cause: 'requirement' | 'reconcile';
+}
+export interface RejudgeLoopsData {
+	loopIds: string[];
+	cause: 'deviation' | 'expiry' | 'reconcile';
+}
+export interface NotifyVerdictData {
+	eventId: string;
 }

@@ -10,7 +10,7 @@ export async function startWorker(connectionString?: string): Promise<RunningWor
 	const boss = createBoss({ role: 'worker', connectionString });
 	await boss.start();
 	await createQueues(boss);
-	await registerHandlers(boss);
+	await registerHandlers(boss, { origin: process.env.ORIGIN ?? 'http://127.0.0.1:3000' });
 	return {
 		async stop() {
 			// Graceful: running jobs finish (or are retried later if the timeout passes).

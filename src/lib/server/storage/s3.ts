@@ -1,10 +1,14 @@
 import {
 	CreateBucketCommand,
+	DeleteObjectCommand,
 	GetObjectCommand,
 	HeadBucketCommand,
+	HeadObjectCommand,
+	ListObjectsV2Command,
 	PutObjectCommand,
 	S3Client
 } from '@aws-sdk/client-s3';
+import { getSignedUrl } from '@aws-sdk/s3-request-presigner';
 import { s3Settings } from '../config';
 
 let client: S3Client | undefined;
@@ -54,4 +58,42 @@ export async function getObjectBytes(key: string): Promise<Uint8Array> {
 	const out = await s3().send(new GetObjectCommand({ Bucket: bucket(), Key: key }));
 	if (!out.Body) throw new Error(`object ${key} has no body`);
 	return out.Body.transformToByteArray();
+}
+
+export async function deleteObject(key: string): Promise<void> {
+	await s3().send(new DeleteObjectCommand({ Bucket: bucket(), Key: key }));
+}
+
+/** Size and time of an object, or null when there is none. */
+export async function headObject(key: string): Promise<{ size: number; modified: Date } | null> {
+	try {
+		const out = await s3().send(new HeadObjectCommand({ Bucket: bucket(), Key: key }));
+		return { size: out.ContentLength ?? 0, modified: out.LastModified ?? new Date() };
+	} catch (error) {
+		const status = (error as { $metadata?: { httpStatusCode?: number } }).$metadata?.httpStatusCode;
+		if (status === 404) return null;
+		throw error;
+	}
+}
+
+/** Every object under a prefix (paged through), for the reconcile job. */
+export async function listObjects(prefix: string): Promise<{ key: string; size: number; modified: Date }[]> {
+	const out: { key: string; size: number; modified: Date }[] = [];
+	let token: string | undefined;
+	do {
+		const page = await s3().send(
+			new ListObjectsV2Command({ Bucket: bucket(), Prefix: prefix, ContinuationToken: token })
+		);
+		for (const o of page.Contents ?? []) {
+			if (o.Key) out.push({ key: o.Key, size: o.Size ?? 0, modified: o.LastModified ?? new Date() });
+		}
+		token = page.IsTruncated ? page.NextContinuationToken : undefined;
+	} while (token);
+	return out;
+}
+
+/** A presigned PUT for one object key; the key is always ours, never the client's. */
+export async function presignPut(key: string, seconds: number): Promise<string> {
+	// S3 cannot bound the size of a presigned PUT; the size is checked when the object arrives.
+	return getSignedUrl(s3(), new PutObjectCommand({ Bucket: bucket(), Key: key }), { expiresIn: seconds });
 }

@@ -1,21 +1,27 @@
 import { defineEntity, p, type InferEntity } from '@mikro-orm/core';
+// Relative, not $lib: the MikroORM CLI and tsx scripts load entities without SvelteKit's aliases.
+import { ROLES, type Role } from '../../../auth/roles';
 
-export const ROLES = ['viewer', 'engineer', 'lead', 'admin'] as const;
-export type Role = (typeof ROLES)[number];
+export { ROLES, type Role };
 
 export const UserSchema = defineEntity({
 	name: 'User',
 	tableName: 'app_user',
 	properties: {
 		id: p.uuid().primary().defaultRaw('gen_random_uuid()'),
+		// Stored lower-cased (src/lib/server/auth/email.ts) so the unique constraint is case-blind.
 		email: p.string().length(320).unique(),
 		name: p.string().length(200),
-		role: p.enum(ROLES).default('viewer'),
+		role: p.enum([...ROLES]).default('viewer'),
 		// Argon2id hash; null for users who only sign in through single sign-on or were invited.
-		passwordHash: p.text().nullable().hidden(),
+		// Lazy: ordinary queries (every request's user lookup) never load it; sign-in asks for it.
+		passwordHash: p.text().nullable().lazy(true, false),
 		active: p.boolean().default(true),
 		createdAt: p.datetime().defaultRaw('now()'),
-		lastSignInAt: p.datetime().nullable()
+		lastSignInAt: p.datetime().nullable(),
+		// Sessions signed in before this instant are void: set on deactivation and password change,
+		// so reactivating an account does not revive a cookie stolen before.
+		sessionsValidFrom: p.datetime().nullable()
 	}
 });
 

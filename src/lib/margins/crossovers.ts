@@ -1,0 +1,222 @@
+/**
+ * Exact crossovers of rational loops: roots of the crossover polynomials, Newton-polished on L
+ * itself and kept only when L confirms them. Near-real complex roots are tried as well, because
+ * a tangent crossing (|L| touching 1) is a double root that rounding splits into a complex pair.
+ */
+import { continuousGainPoly, continuousPhasePoly, sampledGainSeries, sampledPhaseSeries } from './crossover-polys';
+import { gainPolyU, phasePolyU, shiftTo, thetaFromU } from './shifted';
+import { maxAbs, type Poly } from './polynomial';
+import type { ContinuousEval, LoopEval } from './rational-eval';
+import { chebyshevRealRoots } from './chebyshev';
+import { polyRoots } from './roots';
+
+/** A point of the frequency axis: f is ω in rad/s (continuous) or θ = ωT in rad (sampled). */
+export interface Crossing {
+	f: number;
+	re: number;
+	im: number;
+}
+
+const ACCEPT = 1e-9;
+const NEAR_REAL = 1e-2;
+
+/**
+ * Real parts of the roots in [lo, hi] that are real or nearly so. Two close real roots (a nearly
+ * tangent crossing) can come out of rounding as a pair x ± iy: x − y and x + y are tried as well,
+ * and only L itself decides which candidates are crossings.
+ */
+function realRootsIn(p: Poly, lo: number, hi: number): number[] {
+	if (p.length < 2 || maxAbs(p) === 0) return [];
+	const r = polyRoots(p);
+	const out: number[] = [];
+	for (let i = 0; i < r.re.length; i++) {
+		const x = r.re[i];
+		const y = r.im[i];
+		if (y < 0) continue; // its conjugate stands for the pair
+		if (y > NEAR_REAL * Math.abs(x)) continue;
+		for (const c of y === 0 ? [x] : [x - y, x, x + y]) if (c >= lo && c <= hi) out.push(c);
+	}
+	return out;
+}
+
+/** Fujiwara's bound on the root magnitudes of p (ascending). */
+export function rootBound(p: Poly): number {
+	const n = p.length - 1;
+	let bound = 0;
+	for (let k = 1; k <= n; k++) bound = Math.max(bound, Math.abs(p[n - k] / p[n]) ** (1 / k));
+	return 2 * bound;
+}
+
+/** True when p is zero up to rounding relative to the terms it was formed from. */
+const vanishes = (p: Poly, scale: number) => maxAbs(p) <= 1e-13 * scale;
+
+type Residual = (ev: LoopEval) => number;
+const gainResidual: Residual = (ev) => 0.5 * Math.log(ev.re * ev.re + ev.im * ev.im);
+const phaseResidual: Residual = (ev) => Math.atan2(-ev.im, -ev.re);
+
+/**
+ * Newton on the residual in ln f (continuous, and low sampled frequencies) or in θ (the upper
+ * half of the sampled band), with backtracking; returns the polished point and its residual.
+ */
+function polish(ev: LoopEval, f0: number, residual: Residual, phase: boolean): [number, number] {
+	const logVar = !ev.sampled || f0 <= Math.PI / 2;
+	const top = ev.sampled ? Math.PI : Infinity;
+	let f = f0;
+	ev.withSlope(f);
+	let r = residual(ev);
+	for (let it = 0; it < 12 && Math.abs(r) > 1e-15; it++) {
+		let slope = phase ? ev.dim : ev.dre;
+		if (ev.sampled && logVar) slope *= f;
+		if (!Number.isFinite(slope) || slope === 0) break;
+		let step = -r / slope;
+		const cap = logVar ? 0.1 : 0.1 * Math.min(f, top - f + 1e-3);
+		if (Math.abs(step) > cap) step = Math.sign(step) * cap;
+		let improved = false;
+		for (let back = 0; back < 4; back++) {
+			const g = logVar ? f * Math.exp(step) : Math.min(top, Math.max(1e-300, f + step));
+			ev.withSlope(g);
+			const rg = residual(ev);
+			if (Math.abs(rg) < Math.abs(r)) {
+				f = g;
+				r = rg;
+				improved = true;
+				break;
+			}
+			step *= 0.5;
+		}
+		if (!improved) break;
+	}
+	ev.at(f);
+	return [f, Math.abs(residual(ev))];
+}
+
+/**
+ * Phase crossings this close to an open-loop pole are its indentation arc, not a crossover; this
+ * close to a zero, L = 0 is not "real and negative" (the phase there is rounding on an asymptote,
+ * as at the zeros a Tustin map puts at z = −1).
+ */
+export const ON_POLE = 1e-7;
+
+function confirm(ev: LoopEval, candidates: number[], residual: Residual, phase: boolean): Crossing[] {
+	const out: Crossing[] = [];
+	for (const c of candidates) {
+		if (!(c > 0) || !Number.isFinite(c)) continue;
+		let [f, r] = polish(ev, c, residual, phase);
+		if (Math.abs(f - c) > 1e-4 * c) {
+			// Newton wandered (towards another root): judge the algebraic estimate on its own
+			ev.at(c);
+			[f, r] = [c, Math.abs(residual(ev))];
+		}
+		if (r > ACCEPT) continue;
+		ev.at(f);
+		if (phase && !(ev.re < 0 && ev.denRelative > ON_POLE && ev.numRelative > ON_POLE)) continue;
+		out.push({ f, re: ev.re, im: ev.im });
+	}
+	return dedupe(out);
+}
+
+/** Sorted, with points closer than 1e-9 relative merged. */
+export function dedupe(list: Crossing[]): Crossing[] {
+	list.sort((a, b) => a.f - b.f);
+	const out: Crossing[] = [];
+	for (const c of list) {
+		const last = out[out.length - 1];
+		if (!last || Math.abs(c.f - last.f) > 1e-9 * c.f) out.push(c);
+	}
+	return out;
+}
+
+export interface RationalCrossings {
+	gain: Crossing[];
+	/** Interior phase crossovers plus the ω = 0 and Nyquist end points where L is real and negative. */
+	phase: Crossing[];
+}
+
+export function continuousCrossings(ev: ContinuousEval): RationalCrossings {
+	const n = Array.from(ev.num);
+	const d = Array.from(ev.den);
+	const g = ev.gain;
+	const scale = g * g * maxAbs(n) ** 2 + maxAbs(d) ** 2;
+	const G = continuousGainPoly(n, d, g);
+	const H = continuousPhasePoly(n, d);
+	const gainW = vanishes(G, scale) ? [] : realRootsIn(G, 0, Infinity).filter((w) => w > 0);
+	const phaseW = vanishes(H, scale) ? [] : realRootsIn(H, 0, Infinity).filter((w) => w > 0);
+	const toOmega = (w: number) => ev.w0 * Math.sqrt(w);
+	// far beyond every root the phase only creeps towards its asymptote; a "crossing" out there
+	// is that asymptote (−180°, relative degree 2) touched by rounding
+	const beyond = 1e4 * ev.w0 * Math.max(rootBound(n), rootBound(d));
+	const gain = confirm(ev, gainW.map(toOmega), gainResidual, false);
+	const phase = confirm(ev, phaseW.map(toOmega), phaseResidual, true).filter((c) => beyond === 0 || c.f <= beyond);
+	const l0 = ev.atZero();
+	if (Number.isFinite(l0) && l0 < 0) phase.unshift({ f: 0, re: l0, im: 0 });
+	return { gain, phase };
+}
+
+/** Up to this order the shifted power basis is used (exact near z = ±1); above it, the colleague matrix. */
+const POWER_BASIS_MAX = 12;
+
+const fromY = (y: number) => 2 * Math.asin(Math.sqrt(Math.min(2, Math.max(0, y)) / 2));
+const fromU = (u: number) => Math.PI - fromY(u);
+/** θ = acos(x) without the loss of acos near x = ±1. */
+const fromX = (x: number) => (x >= 0 ? fromY(1 - x) : fromU(1 + x));
+
+const sumAbs = (p: Poly) => p.reduce((s, x) => s + Math.abs(x), 0);
+
+/**
+ * Candidate θ of the gain (|L| = 1) and phase (L real) crossings of g·N/D on the unit circle:
+ * the lower half of the circle from the polynomials in u = |z − 1|², the upper half from those
+ * in |z + 1|², each built on coefficients shifted exactly to its end.
+ */
+function circleCandidates(num: Poly, den: Poly, g: number): { gain: number[]; phase: number[] } {
+	const gain: number[] = [];
+	const phase: number[] = [];
+	for (const c of [1, -1] as const) {
+		const n = shiftTo(num, c);
+		const d = shiftTo(den, c);
+		const scale = (g * sumAbs(n)) ** 2 + sumAbs(d) ** 2;
+		const G = gainPolyU(n, d, g, c);
+		const Q = phasePolyU(n, d, c);
+		// the two halves meet at u = 2; the end points themselves are judged separately
+		if (!vanishes(G, scale)) for (const u of realRootsIn(G, c === 1 ? 1e-300 : -1e-12, 2 + 1e-6)) gain.push(thetaFromU(u, c));
+		if (!vanishes(Q, scale)) for (const u of realRootsIn(Q, 1e-300, 2 + 1e-6)) phase.push(thetaFromU(u, c));
+	}
+	return { gain, phase };
+}
+
+/** The same from Chebyshev series in x = cos θ: well conditioned at any order. */
+function seriesCandidates(num: Poly, den: Poly, g: number): { gain: number[]; phase: number[] } {
+	const scale = g * g * maxAbs(num) ** 2 + maxAbs(den) ** 2;
+	const cos = sampledGainSeries(num, den, g);
+	const sin = sampledPhaseSeries(num, den);
+	return {
+		gain: vanishes(cos, scale) ? [] : chebyshevRealRoots(cos, 'T').map(fromX),
+		phase: vanishes(sin, scale) ? [] : chebyshevRealRoots(sin.slice(1), 'U').map(fromX)
+	};
+}
+
+/** num, den: the z-domain coefficients (ascending) of L = gain·num/den that ev evaluates. */
+/**
+ * `folded`: samples of delay folded into den as z^k. The delay has |z^−k| = 1, so the gain
+ * crossovers come from the delay-free (low-order, exactly shifted) loop.
+ */
+export function sampledCrossings(ev: LoopEval, num: Poly, den: Poly, gain: number, folded = 0): RationalCrossings {
+	const candidates = (n: Poly, d: Poly) =>
+		Math.max(n.length, d.length) - 1 <= POWER_BASIS_MAX ? circleCandidates(n, d, gain) : seriesCandidates(n, d, gain);
+	const full = candidates(num, den);
+	const gainT = folded > 0 ? candidates(num, den.slice(folded)).gain : full.gain;
+	const phaseT = full.phase.filter((t) => t > 1e-300 && t < Math.PI);
+	// |L| is even about θ = π, so Newton cannot polish a crossover sitting exactly there: test it directly
+	ev.at(Math.PI);
+	const nyquist: Crossing = { f: Math.PI, re: ev.re, im: 0 };
+	const nyquistGain = Math.abs(gainResidual(ev)) <= ACCEPT;
+	const nyquistFinite = ev.denRelative > 1e-10;
+	const nyquistNonzero = ev.numRelative > ON_POLE;
+	const gainX = confirm(ev, gainT, gainResidual, false);
+	const gainSet = gainX.filter((c) => Math.PI - c.f > 1e-7);
+	if (nyquistGain || gainX.length > gainSet.length) gainSet.push(nyquist);
+	const phase = confirm(ev, phaseT, phaseResidual, true).filter((c) => Math.PI - c.f > 1e-7);
+	const l0 = ev.atZero();
+	if (Number.isFinite(l0) && l0 < 0) phase.unshift({ f: 0, re: l0, im: 0 });
+	if (nyquist.re < 0 && nyquistFinite && nyquistNonzero) phase.push(nyquist);
+	return { gain: dedupe(gainSet), phase };
+}

@@ -1,0 +1,221 @@
+/**
+ * Roots of real polynomials: closed forms up to degree 2, otherwise the eigenvalues of the
+ * balanced companion matrix by Francis QR; when QR does not converge, numeric.eig on the same
+ * matrix, and when that throws (it does on xⁿ − c), Aberth–Ehrlich. Every root is then checked
+ * against the polynomial itself and Newton-polished when its residual is not at rounding level.
+ */
+import numeric from 'numeric';
+import { aberth } from './aberth';
+import { balance, hqr } from './hqr';
+import { lowOrder, trim, type Poly } from './polynomial';
+import { shiftTo } from './shifted';
+
+export interface Roots {
+	re: Float64Array;
+	im: Float64Array;
+	/** 1 − re for roots of a sampled loop, when known more precisely than by subtraction. */
+	offRe?: Float64Array;
+	/** Roots at z = 1 up to the rounding of the coefficients they came from (a written-out integrator). */
+	atOne?: number;
+}
+
+const EMPTY: Roots = { re: new Float64Array(0), im: new Float64Array(0) };
+
+export function polyRoots(p: Poly): Roots {
+	const full = trim(p);
+	if (full.length <= 1) return EMPTY;
+	const atZero = lowOrder(full);
+	const q = atZero ? full.slice(atZero) : full;
+	const n = q.length - 1;
+	const re = new Float64Array(n + atZero);
+	const im = new Float64Array(n + atZero);
+	if (n === 1) re[0] = -q[0] / q[1];
+	else if (n === 2) quadratic(q, re, im);
+	else if (n > 2) {
+		const found = companionRoots(q);
+		re.set(found.re);
+		im.set(found.im);
+		polish(q, re, im, n);
+	}
+	return { re, im };
+}
+
+/**
+ * Roots of a z-domain polynomial, found in w = z − 1 from coefficients shifted exactly (roots
+ * clustered at z = 1 keep their relative precision, and 1 − z comes out without cancellation).
+ * A value p(1) at the level of the coefficients' rounding is a sampled integrator written out as
+ * coefficients: the roots stay those of the polynomial as written, but `atOne` records it, so
+ * that L(z = 1) is taken as infinite rather than as the huge finite value rounding left.
+ */
+export function zRoots(p: Poly): Roots {
+	const q = trim(p);
+	let size = 0;
+	for (const c of q) size += Math.abs(c);
+	const a = shiftTo(q, 1);
+	const atOne = a[0] === 0 || Math.abs(a[0]) > 8 * Number.EPSILON * size ? 0 : 1;
+	const w = polyRoots(a);
+	const re = new Float64Array(w.re.length);
+	const offRe = new Float64Array(w.re.length);
+	for (let i = 0; i < re.length; i++) {
+		re[i] = 1 + w.re[i];
+		offRe[i] = -w.re[i];
+	}
+	return { re, im: w.im, offRe, atOne };
+}
+
+function quadratic(q: Poly, re: Float64Array, im: Float64Array): void {
+	const s = Math.max(Math.abs(q[0]), Math.abs(q[1]), Math.abs(q[2]));
+	const [c, b, a] = [q[0] / s, q[1] / s, q[2] / s];
+	const disc = b * b - 4 * a * c;
+	if (disc >= 0) {
+		// the sign choice avoids cancellation; the second root follows from Vieta
+		const t = -0.5 * (b + (b >= 0 ? Math.sqrt(disc) : -Math.sqrt(disc)));
+		re[0] = t / a;
+		re[1] = t !== 0 ? c / t : 0;
+	} else {
+		re[0] = re[1] = -b / (2 * a);
+		im[0] = Math.sqrt(-disc) / (2 * Math.abs(a));
+		im[1] = -im[0];
+	}
+}
+
+function companion(q: Poly, n: number): Float64Array {
+	const w = n + 1;
+	const a = new Float64Array(w * w);
+	for (let k = 1; k <= n; k++) {
+		a[1 * w + k] = -q[n - k] / q[n];
+		if (k < n) a[(k + 1) * w + k] = 1;
+	}
+	balance(a, n);
+	return a;
+}
+
+function companionRoots(q: Poly): Roots {
+	const n = q.length - 1;
+	const a = companion(q, n);
+	const re = new Float64Array(n);
+	const im = new Float64Array(n);
+	if (hqr(a, n, re, im) && allFinite(re) && allFinite(im)) return { re, im };
+	try {
+		// hqr overwrote the matrix: rebuild it for the second opinion
+		const fresh = companion(q, n);
+		const m: number[][] = [];
+		for (let i = 1; i <= n; i++) m.push(Array.from(fresh.subarray(i * (n + 1) + 1, (i + 1) * (n + 1))));
+		const { lambda } = numeric.eig(m);
+		const x = lambda.x as number[];
+		const y = (lambda.y as number[] | undefined) ?? [];
+		for (let i = 0; i < n; i++) {
+			re[i] = x[i];
+			im[i] = y[i] ?? 0;
+		}
+		if (allFinite(re) && allFinite(im)) return { re, im };
+	} catch {
+		// numeric.eig reports "internal error" on some companion matrices; Aberth does not care
+	}
+	return pairConjugates(aberth(q));
+}
+
+function allFinite(x: Float64Array): boolean {
+	for (let i = 0; i < x.length; i++) if (!Number.isFinite(x[i])) return false;
+	return true;
+}
+
+/** Relative residual |q(z)| / Σ|q_i||z|^i: rounding level (~n·eps) for a root of q. */
+export function residual(q: Poly, zr: number, zi: number): number {
+	let pr = 0;
+	let pi = 0;
+	let sc = 0;
+	const az = Math.hypot(zr, zi);
+	for (let i = q.length - 1; i >= 0; i--) {
+		const t = pr * zr - pi * zi + q[i];
+		pi = pr * zi + pi * zr;
+		pr = t;
+		sc = sc * az + Math.abs(q[i]);
+	}
+	return sc === 0 ? 0 : Math.hypot(pr, pi) / sc;
+}
+
+function newtonStep(q: Poly, zr: number, zi: number): [number, number] {
+	let pr = 0;
+	let pi = 0;
+	let dr = 0;
+	let di = 0;
+	for (let i = q.length - 1; i >= 0; i--) {
+		const tr = dr * zr - di * zi + pr;
+		di = dr * zi + di * zr + pi;
+		dr = tr;
+		const t = pr * zr - pi * zi + q[i];
+		pi = pr * zi + pi * zr;
+		pr = t;
+	}
+	const d = dr * dr + di * di;
+	if (d === 0) return [zr, zi];
+	return [zr - (pr * dr + pi * di) / d, zi - (pi * dr - pr * di) / d];
+}
+
+const RESIDUAL_OK = 1e-13;
+
+function polish(q: Poly, re: Float64Array, im: Float64Array, n: number): void {
+	let bad = 0;
+	let moved = false;
+	for (let k = 0; k < n; k++) {
+		let r = residual(q, re[k], im[k]);
+		for (let step = 0; step < 4 && r > RESIDUAL_OK; step++) {
+			const [nr, ni] = newtonStep(q, re[k], im[k]);
+			const rn = residual(q, nr, ni);
+			if (!(rn < r)) break;
+			re[k] = nr;
+			im[k] = im[k] === 0 ? 0 : ni;
+			r = rn;
+			moved = true;
+		}
+		if (r > 1e-6) bad++;
+	}
+	// QR returns exact conjugate pairs; only Newton can have broken one
+	if (moved) pairConjugates({ re, im });
+	if (bad > 0) {
+		const better = pairConjugates(aberth(q, { re: re.slice(), im: im.slice() }));
+		let worse = 0;
+		let improved = 0;
+		for (let k = 0; k < n; k++) {
+			worse += residual(q, re[k], im[k]);
+			improved += residual(q, better.re[k], better.im[k]);
+		}
+		if (improved < worse) {
+			re.set(better.re);
+			im.set(better.im);
+		}
+	}
+}
+
+/** Aberth's roots of a real polynomial are conjugate only up to rounding: make pairs exact. */
+function pairConjugates(r: Roots): Roots {
+	const n = r.re.length;
+	const used = new Uint8Array(n);
+	for (let i = 0; i < n; i++) {
+		if (used[i]) continue;
+		const scale = Math.hypot(r.re[i], r.im[i]);
+		if (Math.abs(r.im[i]) <= 1e-12 * scale) {
+			r.im[i] = 0;
+			used[i] = 1;
+			continue;
+		}
+		let best = -1;
+		let bestD = Infinity;
+		for (let j = i + 1; j < n; j++) {
+			if (used[j]) continue;
+			const d = Math.hypot(r.re[j] - r.re[i], r.im[j] + r.im[i]);
+			if (d < bestD) [best, bestD] = [j, d];
+		}
+		used[i] = 1;
+		if (best >= 0 && bestD <= 1e-6 * scale) {
+			used[best] = 1;
+			const a = 0.5 * (r.re[i] + r.re[best]);
+			const b = 0.5 * (Math.abs(r.im[i]) + Math.abs(r.im[best]));
+			r.re[i] = r.re[best] = a;
+			r.im[i] = b;
+			r.im[best] = -b;
+		}
+	}
+	return r;
+}

@@ -1,0 +1,113 @@
+/**
+ * L(e^{jθ}) of a sampled rational loop from its roots: L = lead · Π(z − zᵢ)/Π(z − pᵢ).
+ * Products over factors stay accurate where Horner on z-coefficients cancels: near z = 1, where a
+ * fast-sampled loop has its poles clustered, and at any θ for high orders. Each factor is
+ * (e^{jθ} − 1) + (1 − r) with e^{jθ} − 1 = −2sin²(θ/2) + j·sin θ and 1 − r exact for r near 1.
+ */
+import type { Roots } from './roots';
+
+export class SampledEval {
+	readonly sampled = true;
+	readonly lead: number;
+	private readonly zr: Float64Array;
+	private readonly zi: Float64Array;
+	private readonly pr: Float64Array;
+	private readonly pi: Float64Array;
+	re = 0;
+	im = 0;
+	/** d ln L / dθ: real part is the log-magnitude slope, imaginary part the phase slope. */
+	dre = 0;
+	dim = 0;
+	/** Distance from e^{jθ} to the nearest pole at the last point (0 on a pole). */
+	denRelative = 1;
+	/** The same for the zeros. */
+	numRelative = 1;
+
+	/** Roots at z = 1 exactly or up to rounding (see zRoots): they decide L(1). */
+	private readonly onePoles: number;
+	private readonly oneZeros: number;
+
+	constructor(zeros: Roots, poles: Roots, lead: number) {
+		this.lead = lead;
+		const exact = (r: Roots) => r.re.reduce((n, x, k) => n + (x === 1 && r.im[k] === 0 ? 1 : 0), 0);
+		this.onePoles = Math.max(exact(poles), poles.atOne ?? 0);
+		this.oneZeros = Math.max(exact(zeros), zeros.atOne ?? 0);
+		// stored as 1 − r so the factor needs no subtraction of nearly equal numbers
+		this.zr = zeros.offRe ?? Float64Array.from(zeros.re, (x) => 1 - x);
+		this.zi = Float64Array.from(zeros.im, (x) => -x);
+		this.pr = poles.offRe ?? Float64Array.from(poles.re, (x) => 1 - x);
+		this.pi = Float64Array.from(poles.im, (x) => -x);
+	}
+
+	private run(theta: number, slope: boolean): void {
+		const s = Math.sin(0.5 * theta);
+		const er = -2 * s * s;
+		// sin(π) is 1.2e-16 in floating point: at the Nyquist frequency z = −1 exactly
+		const ei = theta === Math.PI ? 0 : Math.sin(theta);
+		let lr = this.lead;
+		let li = 0;
+		let sr = 0;
+		let si = 0;
+		let nearest = Infinity;
+		let nearestZero = Infinity;
+		const nz = this.zr.length;
+		const np = this.pr.length;
+		const n = Math.max(nz, np);
+		// zeros and poles interleaved so the running product neither overflows nor underflows
+		for (let i = 0; i < n; i++) {
+			if (i < nz) {
+				const fr = er + this.zr[i];
+				const fi = ei + this.zi[i];
+				nearestZero = Math.min(nearestZero, fr * fr + fi * fi);
+				const t = lr * fr - li * fi;
+				li = lr * fi + li * fr;
+				lr = t;
+				if (slope) {
+					const d = fr * fr + fi * fi;
+					sr += fr / d;
+					si -= fi / d;
+				}
+			}
+			if (i < np) {
+				const fr = er + this.pr[i];
+				const fi = ei + this.pi[i];
+				const d = fr * fr + fi * fi;
+				nearest = Math.min(nearest, d);
+				const t = (lr * fr + li * fi) / d;
+				li = (li * fr - lr * fi) / d;
+				lr = t;
+				if (slope) {
+					sr -= fr / d;
+					si += fi / d;
+				}
+			}
+		}
+		this.re = lr;
+		this.im = li;
+		this.denRelative = Math.sqrt(nearest);
+		this.numRelative = Math.sqrt(nearestZero);
+		if (slope) {
+			// d/dθ ln(e^{jθ} − r) = j e^{jθ} / (e^{jθ} − r)
+			const cr = -ei;
+			const ci = 1 + er;
+			this.dre = sr * cr - si * ci;
+			this.dim = sr * ci + si * cr;
+		}
+	}
+
+	at(theta: number): void {
+		this.run(theta, false);
+	}
+
+	withSlope(theta: number): void {
+		this.run(theta, true);
+	}
+
+	/** L at z = 1; Infinity on an open-loop pole there. */
+	atZero(): number {
+		if (this.onePoles > this.oneZeros) return Infinity;
+		if (this.onePoles > 0) return NaN;
+		this.run(0, false);
+		return this.re;
+	}
+}

@@ -1,0 +1,25 @@
+import { json } from '@sveltejs/kit';
+import { api } from '$lib/server/http/respond';
+import { readJsonObject } from '$lib/server/http/body';
+import { requireRole, requireScope } from '$lib/server/auth/guard';
+import { forkEm } from '$lib/server/db/orm';
+import { pagingFrom } from '$lib/server/registry/common';
+import { createLoop, listLoops, loopFiltersFrom } from '$lib/server/registry/loops';
+import type { RequestHandler } from './$types';
+
+/** Filters: q, product, class, owner, verdict, tag, archived=active|archived|all; sort, dir. */
+export const GET = (async (event) =>
+	api(async () => {
+		requireScope(event, 'read');
+		const params = event.url.searchParams;
+		return json(await listLoops(await forkEm(), loopFiltersFrom(params), pagingFrom(params)));
+	})) satisfies RequestHandler;
+
+/** Body: { product, class, key, name, owner? (e-mail; default you), tags?: [], note? }. */
+export const POST = (async (event) =>
+	api(async () => {
+		const user = requireRole(event, 'engineer');
+		requireScope(event, 'upload');
+		const loop = await createLoop(await forkEm(), user, await readJsonObject(event.request));
+		return json(loop, { status: 201 });
+	})) satisfies RequestHandler;
