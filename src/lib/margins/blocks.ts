@@ -2,6 +2,7 @@
  * Rational blocks as numerator/denominator polynomials (ascending) in the block's own variable,
  * s or z; roots are kept when the block states them, so later stages need not recompute them.
  */
+import type { Realisation } from './cascade';
 import { stateSpaceFactor } from './state-space';
 import { add, fromDescending, fromRoots, mul, scale, trim, type Poly } from './polynomial';
 import type { Roots } from './roots';
@@ -12,6 +13,8 @@ export interface Factor {
 	den: Poly;
 	zeros?: Roots;
 	poles?: Roots;
+	/** The block's own state-space realisation, when it came as one (the hold uses it as given). */
+	realisation?: Realisation;
 }
 
 export type RationalBlock = PolynomialBlock | FactoredBlock | StateSpaceBlock | PidBlock;

@@ -115,6 +115,15 @@ function confirm(ev: LoopEval, candidates: number[], residual: Residual, phase: 
 	return dedupe(out);
 }
 
+/**
+ * N(−1) = 0 up to the rounding of N's coefficients (a Tustin zero at z = −1, written out): then
+ * L is zero at the Nyquist frequency, whatever rounding leaves of it.
+ */
+export function vanishesAtMinusOne(num: Poly): boolean {
+	const a = shiftTo(num, -1);
+	return Math.abs(a[0]) <= 8 * Number.EPSILON * sumAbs(num);
+}
+
 /** Sorted, with points closer than 1e-9 relative merged. */
 export function dedupe(list: Crossing[]): Crossing[] {
 	list.sort((a, b) => a.f - b.f);
@@ -208,9 +217,9 @@ export function sampledCrossings(ev: LoopEval, num: Poly, den: Poly, gain: numbe
 	// |L| is even about θ = π, so Newton cannot polish a crossover sitting exactly there: test it directly
 	ev.at(Math.PI);
 	const nyquist: Crossing = { f: Math.PI, re: ev.re, im: 0 };
-	const nyquistGain = Math.abs(gainResidual(ev)) <= ACCEPT;
 	const nyquistFinite = ev.denRelative > 1e-10;
-	const nyquistNonzero = ev.numRelative > ON_POLE;
+	const nyquistNonzero = !vanishesAtMinusOne(num);
+	const nyquistGain = nyquistNonzero && Math.abs(gainResidual(ev)) <= ACCEPT;
 	const gainX = confirm(ev, gainT, gainResidual, false);
 	const gainSet = gainX.filter((c) => Math.PI - c.f > 1e-7);
 	if (nyquistGain || gainX.length > gainSet.length) gainSet.push(nyquist);

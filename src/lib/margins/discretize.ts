@@ -5,7 +5,9 @@
 import type { Factor } from './blocks';
 import { ModelError, type PathSegment } from './issues';
 import { expm, type Matrix } from './linalg';
-import { add, fromRoots, mul, powerOfTwo, rootCentre, scale, scaleArgument, sub, trim, type Poly } from './polynomial';
+import { add, fromRoots, mul, scale, trim, type Poly } from './polynomial';
+import { cascade } from './cascade';
+import { transfer } from './state-space';
 import { polyRoots, type Roots } from './roots';
 
 export function tustin(f: Factor, T: number): Factor {
@@ -65,35 +67,30 @@ export function tustin(f: Factor, T: number): Factor {
 }
 
 /**
- * Zero-order hold via e^{[[A, b], [0, 0]]·T} of the controllable canonical realisation, in a
- * frequency-scaled time unit so that stiff blocks keep a well-conditioned matrix. The
- * denominator is exact (poles map to e^{pT}); the numerator follows from the Markov parameters
- * c·Φ^j·Γ, which avoids subtracting two nearly equal characteristic polynomials.
+ * Zero-order hold: e^{[[A, b], [0, 0]]·T} of a well-scaled realisation (the block's own, or a
+ * cascade of sections built from its roots) gives Φ and Γ. The denominator is exact (poles map to
+ * e^{pT}); the numerator is sampled, N(z) = D(z)·(c(zI − Φ)⁻¹Γ + d), on a rotated unit circle and
+ * recovered by an inverse DFT, a unitary and hence well-conditioned step.
  */
 export function zeroOrderHold(f: Factor, T: number, path: PathSegment[]): Factor {
 	const n = f.den.length - 1;
 	if (f.num.length - 1 > n)
 		throw new ModelError(path, 'zero-order hold needs a proper block (numerator degree ≤ denominator degree)');
 	if (n === 0) return { num: f.num, den: f.den, zeros: { re: new Float64Array(0), im: new Float64Array(0) }, poles: f.poles };
-	const w0 = powerOfTwo(rootCentre(f.den) ?? 1);
-	const den = scaleArgument(f.den, w0);
-	const num = scaleArgument(f.num, w0);
-	const lead = den[n];
-	const d = num.length - 1 === n ? num[n] / lead : 0;
-	const strict = sub(num, scale(den, d));
-	const t = w0 * T;
+	const sPoles = f.poles ?? polyRoots(f.den);
+	const real = f.realisation ?? cascade(f.zeros ?? polyRoots(f.num), sPoles, f.num[f.num.length - 1] / f.den[n]);
 	const size = n + 1;
 	const m: Matrix = Array.from({ length: size }, () => new Array<number>(size).fill(0));
-	for (let i = 0; i < n - 1; i++) m[i][i + 1] = t;
-	for (let j = 0; j < n; j++) m[n - 1][j] = (-den[j] / lead) * t;
-	m[n - 1][n] = t;
+	for (let i = 0; i < n; i++) {
+		for (let j = 0; j < n; j++) m[i][j] = real.a[i][j] * T;
+		m[i][n] = real.b[i] * T;
+	}
 	const e = expm(m);
 	if (!e.every((row) => row.every(Number.isFinite)))
 		throw new ModelError(path, `zero-order hold overflows at T = ${T} s (a pole too fast or too unstable for this sample time)`);
-	const c = new Array<number>(n).fill(0);
-	for (let j = 0; j < n; j++) c[j] = (strict[j] ?? 0) / lead;
+	const phi = e.slice(0, n).map((row) => row.slice(0, n));
+	const gamma = e.slice(0, n).map((row) => row[n]);
 
-	const sPoles = f.poles ?? polyRoots(f.den);
 	const zre = new Float64Array(n);
 	const zim = new Float64Array(n);
 	const off = new Float64Array(n);
@@ -108,23 +105,46 @@ export function zeroOrderHold(f: Factor, T: number, path: PathSegment[]): Factor
 		const s = Math.sin(0.5 * b);
 		off[i] = -Math.expm1(sPoles.re[i] * T) * Math.cos(b) + 2 * s * s;
 	}
-	const zDen = fromRoots(zre, zim);
-	// Markov parameters h_j = c Φ^j Γ
-	let v = e.slice(0, n).map((row) => row[n]);
-	const h: number[] = [];
-	for (let j = 0; j < n; j++) {
-		h.push(v.reduce((s, x, i) => s + c[i] * x, 0));
-		v = e.slice(0, n).map((row) => row.slice(0, n).reduce((s, x, i) => s + x * v[i], 0));
+	const poles: Roots = { re: zre, im: zim, offRe: off };
+	return { num: sampledNumerator(phi, gamma, real.c, real.d, poles), den: fromRoots(zre, zim), poles };
+}
+
+/** Coefficients of D(z)·(c(zI − Φ)⁻¹Γ + d), degree ≤ n, from n + 1 points of a rotated unit circle. */
+function sampledNumerator(phi: Matrix, gamma: number[], c: number[], d: number, poles: Roots): Poly {
+	const n = phi.length;
+	const count = n + 1;
+	const offset = 0.3 + Math.PI / (2 * count);
+	const sr = new Float64Array(count);
+	const si = new Float64Array(count);
+	let largest = 0;
+	for (let k = 0; k < count; k++) {
+		const t = offset + (2 * Math.PI * k) / count;
+		const [xr, xi] = [Math.cos(t), Math.sin(t)];
+		const [gr, gi] = transfer(phi, gamma, c, xr, xi);
+		let dr = 1;
+		let di = 0;
+		for (let i = 0; i < n; i++) {
+			const fr = xr - poles.re[i];
+			const fi = xi - poles.im[i];
+			[dr, di] = [dr * fr - di * fi, dr * fi + di * fr];
+		}
+		const hr = gr + d;
+		sr[k] = hr * dr - gi * di;
+		si[k] = hr * di + gi * dr;
+		largest = Math.max(largest, Math.hypot(sr[k], si[k]));
 	}
-	// N(z) = d·D(z) + Σ_i z^(n−i) Σ_{j<i} α_(i−1−j) h_j with α the descending coefficients of D
-	const alpha = zDen.slice().reverse();
-	const strictZ = new Array<number>(n + 1).fill(0);
-	for (let i = 1; i <= n; i++) {
-		let s = 0;
-		for (let j = 0; j < i; j++) s += alpha[i - 1 - j] * h[j];
-		strictZ[n - i] = s;
+	const noise = 16 * count * Number.EPSILON * largest;
+	const out = new Array<number>(count).fill(0);
+	for (let i = 0; i < count; i++) {
+		let acc = 0;
+		for (let k = 0; k < count; k++) {
+			const t = -i * (offset + (2 * Math.PI * k) / count);
+			acc += sr[k] * Math.cos(t) - si[k] * Math.sin(t);
+		}
+		acc /= count;
+		out[i] = Math.abs(acc) <= noise ? 0 : acc;
 	}
-	return { num: trim(add(scale(zDen, d), strictZ)), den: zDen, poles: { re: zre, im: zim, offRe: off } };
+	return trim(out);
 }
 
 export function discretise(f: Factor, method: 'zoh' | 'tustin', T: number, path: PathSegment[]): Factor {

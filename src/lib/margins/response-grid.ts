@@ -143,21 +143,23 @@ export function buildGrid(loop: CaseLoop, resp: LoopResponse, roots: RootClasses
 
 /**
  * Past the point where |L| has fallen below −60 dB for good, further phase crossovers of a
- * delayed loop only add gain margins beyond 60 dB; the band stops there (and at a delay phase of
- * a few thousand radians) instead of winding on. `reach` > 1 pushes both limits out, for a loop
- * whose gain margin lies beyond them.
+ * delayed loop only add gain margins beyond 60 dB; the band stops there instead of winding on
+ * (the grid's point budget bounds the work for very long delays). `reach` > 1 pushes the limit
+ * out, for a loop whose gain margin lies beyond it.
  */
 function continuousTop(resp: LoopResponse, lo: number, hi: number, gainF: number[], reach: number): number {
-	const coarse = logGrid(lo, hi, 8);
+	// the features' band may end while |L| is still above the floor (a slow roll-off): look beyond
+	const coarse = logGrid(lo, hi * 1e4, 8);
 	let last = coarse[0];
 	const floor = Math.log(1e-3 / reach);
 	for (const f of coarse) {
 		resp.at(f);
 		if (resp.lnMag >= floor) last = f;
 	}
-	let top = Math.max(4 * last, ...gainF.map((f) => 10 * f));
-	if (resp.delay > 0) top = Math.min(top, (3000 * reach) / resp.delay);
-	return Math.min(hi, Math.max(top, lo * 10));
+	// a biproper loop never falls below the floor: it keeps the features' band
+	if (last === coarse[coarse.length - 1]) return hi;
+	const top = Math.max(4 * last, ...gainF.map((f) => 10 * f));
+	return Math.min(hi * 1e4, Math.max(top, lo * 10));
 }
 
 /** Halves intervals (geometrically) until the phase moves < 60° and |L| < e× between points. */

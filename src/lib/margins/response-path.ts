@@ -4,7 +4,8 @@
  * of a delayed rational loop stay exact (the delay has |·| = 1).
  */
 import { brentRoot } from './brent';
-import { continuousCrossings, dedupe, ON_POLE, sampledCrossings, type Crossing } from './crossovers';
+import { continuousCrossings, dedupe, ON_POLE, sampledCrossings, vanishesAtMinusOne, type Crossing } from './crossovers';
+import type { Poly } from './polynomial';
 import type { CaseAnalysis } from './figures';
 import { gainCandidates, gainInterval, type GainCandidate } from './gain-margins';
 import type { CaseLoop } from './loop';
@@ -31,7 +32,7 @@ export function responseAnalysis(loop: CaseLoop): CaseAnalysis {
 			: sampledCrossings(rational, loop.num, loop.den, loop.gain).gain
 		: null;
 	let grid = buildGrid(loop, resp, roots, (exact ?? []).map((c) => c.f));
-	let phase = phaseCrossings(resp, grid.samples, rational);
+	let phase = phaseCrossings(resp, grid.samples, rational, loop.num);
 	let count = nyquistCount(loop, resp, roots, grid, phase, rational);
 	const z = unstableCount(count, 1);
 	const stable = z === 0;
@@ -39,7 +40,7 @@ export function responseAnalysis(loop: CaseLoop): CaseAnalysis {
 	// a delayed strictly proper loop always has a finite upper gain margin: look further out for it
 	for (let reach = 100; interval && !interval.high && count.neutral === 0 && !measured && !resp.sampled && resp.delay > 0 && reach <= 1e6; reach *= 100) {
 		grid = buildGrid(loop, resp, roots, (exact ?? []).map((c) => c.f), reach);
-		phase = phaseCrossings(resp, grid.samples, rational);
+		phase = phaseCrossings(resp, grid.samples, rational, loop.num);
 		count = nyquistCount(loop, resp, roots, grid, phase, rational);
 		interval = walk(count, phase);
 	}
@@ -63,9 +64,9 @@ export function responseAnalysis(loop: CaseLoop): CaseAnalysis {
 	};
 }
 
-function phaseCrossings(resp: LoopResponse, samples: Sample[], rational: LoopEval | null): PhaseCrossing[] {
+function phaseCrossings(resp: LoopResponse, samples: Sample[], rational: LoopEval | null, num: Poly): PhaseCrossing[] {
 	const phase = bracketPhase(resp, samples).filter((c) => resp.zeroDistance(c.f) > ON_POLE);
-	if (rational) addEnds(resp, rational, phase);
+	if (rational) addEnds(resp, rational, num, phase);
 	return phase;
 }
 
@@ -145,13 +146,13 @@ function bracketPhase(resp: LoopResponse, samples: Sample[]): PhaseCrossing[] {
 }
 
 /** The ω → 0 and Nyquist end points, where L is real: phase crossovers when negative. */
-function addEnds(resp: LoopResponse, rational: LoopEval, phase: PhaseCrossing[]): void {
+function addEnds(resp: LoopResponse, rational: LoopEval, num: Poly, phase: PhaseCrossing[]): void {
 	const l0 = rational.atZero();
 	if (Number.isFinite(l0) && l0 < 0) phase.unshift({ f: 0, re: l0, im: 0, dir: 0, end: true });
 	if (resp.sampled) {
 		rational.at(Math.PI);
 		const sign = resp.delay % 2 === 0 ? 1 : -1;
 		const l = rational.re * sign;
-		if (l < 0 && rational.denRelative > 1e-10 && rational.numRelative > ON_POLE) phase.push({ f: Math.PI, re: l, im: 0, dir: 0, end: true });
+		if (l < 0 && rational.denRelative > 1e-10 && !vanishesAtMinusOne(num)) phase.push({ f: Math.PI, re: l, im: 0, dir: 0, end: true });
 	}
 }

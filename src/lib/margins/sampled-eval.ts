@@ -106,6 +106,7 @@ export class SampledEval {
 	/** L at z = 1; Infinity on an open-loop pole there. */
 	atZero(): number {
 		if (this.onePoles > this.oneZeros) return Infinity;
+		if (this.oneZeros > this.onePoles) return 0;
 		if (this.onePoles > 0) return NaN;
 		this.run(0, false);
 		return this.re;

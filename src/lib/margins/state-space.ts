@@ -20,7 +20,7 @@ export function stateSpaceFactor(block: StateSpaceBlock): Factor {
 	const poles = snapIntegrators(pairUp(eigenvalues(a)), rho);
 	const den = fromRoots(poles.re, poles.im);
 	const strict = strictNumerator(a, b, c, poles);
-	return { num: trim(add(scale(den, d), strict)), den, poles };
+	return { num: trim(add(scale(den, d), strict)), den, poles, realisation: { a, b, c, d } };
 }
 
 /** numeric.eig returns conjugate pairs whose parts may differ in the last bit: make them exact. */
@@ -132,7 +132,7 @@ function strictNumerator(a: Matrix, b: number[], c: number[], poles: Roots): Pol
 }
 
 /** c·(sI − A)⁻¹·b by complex Gaussian elimination with partial pivoting. */
-function transfer(a: Matrix, b: number[], c: number[], s: number, t: number): [number, number] {
+export function transfer(a: Matrix, b: number[], c: number[], s: number, t: number): [number, number] {
 	const n = a.length;
 	const mr = a.map((row, i) => [...row.map((x, j) => (i === j ? s : 0) - x), b[i]]);
 	const mi = a.map((row, i) => [...row.map((_, j) => (i === j ? t : 0)), 0]);
