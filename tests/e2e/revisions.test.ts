@@ -42,6 +42,11 @@ describe('model revisions in the browser', () => {
 		await page.getByLabel('Password').fill('headroom-demo');
 		await page.getByRole('button', { name: 'Sign in', exact: true }).click();
 		await page.waitForURL(baseUrl() + '/');
+		// The home page counts the loops per verdict, each count a link to that filter.
+		const counts = page.getByTestId('verdict-counts');
+		expect(await counts.innerText()).toMatch(/Unstable/);
+		expect(await counts.getByRole('link').first().getAttribute('href')).toBe('/loops?verdict=unstable');
+		await snap(page, 'home-signed-in');
 		await page.goto(`${baseUrl()}/loops/${loop.id}`);
 		await page.getByRole('heading', { name: 'Model revisions' }).waitFor();
 

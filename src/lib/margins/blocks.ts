@@ -5,6 +5,7 @@
 import type { Realisation } from './cascade';
 import { stateSpaceFactor } from './state-space';
 import { add, fromDescending, fromRoots, mul, scale, trim, type Poly } from './polynomial';
+import { shiftTo } from './shifted';
 import type { Roots } from './roots';
 import type { FactoredBlock, PidBlock, PolynomialBlock, StateSpaceBlock } from './schema';
 
@@ -15,18 +16,26 @@ export interface Factor {
 	poles?: Roots;
 	/** The block's own state-space realisation, when it came as one (the hold uses it as given). */
 	realisation?: Realisation;
+	/** Sampled factors: num and den in powers of w = z − 1, exact where the z-coefficients are not. */
+	numW?: Poly;
+	denW?: Poly;
 }
 
 export type RationalBlock = PolynomialBlock | FactoredBlock | StateSpaceBlock | PidBlock;
 
-export function rationalFactor(block: RationalBlock): Factor {
+/** `sampled`: the block is in z (not a continuous block about to be discretised). */
+export function rationalFactor(block: RationalBlock, sampled = false): Factor {
 	switch (block.type) {
-		case 'polynomial':
-			return { num: fromDescending(block.numerator), den: fromDescending(block.denominator) };
+		case 'polynomial': {
+			const num = fromDescending(block.numerator);
+			const den = fromDescending(block.denominator);
+			// the file's z-coefficients are exact: shifted exactly, they hold everything near z = 1
+			return sampled ? { num, den, numW: trim(shiftTo(num, 1)), denW: trim(shiftTo(den, 1)) } : { num, den };
+		}
 		case 'factored':
 			return factored(block);
 		case 'state-space':
-			return stateSpaceFactor(block);
+			return stateSpaceFactor(block, sampled);
 		case 'pid':
 			return pid(block);
 	}

@@ -116,12 +116,13 @@ function confirm(ev: LoopEval, candidates: number[], residual: Residual, phase: 
 }
 
 /**
- * N(−1) = 0 up to the rounding of N's coefficients (a Tustin zero at z = −1, written out): then
- * L is zero at the Nyquist frequency, whatever rounding leaves of it.
+ * N(−1) = 0 up to the rounding of N's coefficients (a Tustin zero at z = −1, written out, or a
+ * fitted numerator's): then L is zero at the Nyquist frequency, whatever rounding leaves of it.
+ * numW: N in powers of w = z − 1.
  */
-export function vanishesAtMinusOne(num: Poly): boolean {
-	const a = shiftTo(num, -1);
-	return Math.abs(a[0]) <= 8 * Number.EPSILON * sumAbs(num);
+export function vanishesAtMinusOne(numW: Poly): boolean {
+	const a = shiftTo(numW, -2);
+	return Math.abs(a[0]) <= 64 * Number.EPSILON * sumAbs(a);
 }
 
 /** Sorted, with points closer than 1e-9 relative merged. */
@@ -176,12 +177,13 @@ const sumAbs = (p: Poly) => p.reduce((s, x) => s + Math.abs(x), 0);
  * the lower half of the circle from the polynomials in u = |z − 1|², the upper half from those
  * in |z + 1|², each built on coefficients shifted exactly to its end.
  */
-function circleCandidates(num: Poly, den: Poly, g: number): { gain: number[]; phase: number[] } {
+function circleCandidates(numW: Poly, denW: Poly, g: number): { gain: number[]; phase: number[] } {
 	const gain: number[] = [];
 	const phase: number[] = [];
 	for (const c of [1, -1] as const) {
-		const n = shiftTo(num, c);
-		const d = shiftTo(den, c);
+		// from w = z − 1 to v = z + 1 = w + 2, exactly
+		const n = c === 1 ? numW : shiftTo(numW, -2);
+		const d = c === 1 ? denW : shiftTo(denW, -2);
 		const scale = (g * sumAbs(n)) ** 2 + sumAbs(d) ** 2;
 		const G = gainPolyU(n, d, g, c);
 		const Q = phasePolyU(n, d, c);
@@ -203,27 +205,43 @@ function seriesCandidates(num: Poly, den: Poly, g: number): { gain: number[]; ph
 	};
 }
 
-/** num, den: the z-domain coefficients (ascending) of L = gain·num/den that ev evaluates. */
-/**
- * `folded`: samples of delay folded into den as z^k. The delay has |z^−k| = 1, so the gain
- * crossovers come from the delay-free (low-order, exactly shifted) loop.
- */
-export function sampledCrossings(ev: LoopEval, num: Poly, den: Poly, gain: number, folded = 0): RationalCrossings {
-	const candidates = (n: Poly, d: Poly) =>
-		Math.max(n.length, d.length) - 1 <= POWER_BASIS_MAX ? circleCandidates(n, d, gain) : seriesCandidates(n, d, gain);
-	const full = candidates(num, den);
-	const gainT = folded > 0 ? candidates(num, den.slice(folded)).gain : full.gain;
+/** L = gain·num/den, in z-coefficients and in w = z − 1 (sampled-forms.ts). */
+export interface SampledLoopForms {
+	z: { num: Poly; den: Poly; gain: number };
+	w: { num: Poly; den: Poly; gain: number };
+	/** The same without a whole-sample delay folded into den (|z^−k| = 1: same gain crossovers). */
+	undelayed: { num: Poly; den: Poly; gain: number };
+}
+
+const orderOf = (f: { num: Poly; den: Poly }) => Math.max(f.num.length, f.den.length) - 1;
+
+/** Low orders from the exact w-forms; high orders (a long folded delay) from z-coefficient Chebyshev series. */
+function candidatesOf(forms: SampledLoopForms, which: 'w' | 'undelayed') {
+	const w = forms[which];
+	if (orderOf(w) <= POWER_BASIS_MAX) return circleCandidates(w.num, w.den, w.gain);
+	const z = which === 'w' ? forms.z : { num: shiftTo(w.num, -1), den: shiftTo(w.den, -1), gain: w.gain };
+	return seriesCandidates(z.num, z.den, z.gain);
+}
+
+export function sampledCrossings(ev: LoopEval, forms: SampledLoopForms): RationalCrossings {
+	const full = candidatesOf(forms, 'w');
+	const gainT = forms.undelayed === forms.w ? full.gain : candidatesOf(forms, 'undelayed').gain;
 	const phaseT = full.phase.filter((t) => t > 1e-300 && t < Math.PI);
+	const num = forms.w.num;
+	// a scale-free yardstick: |L| far below its value at θ = π/2 is a zero on the circle that
+	// rounding moved off it (a Tustin zero at z = −1), not a phase crossover
+	ev.at(Math.PI / 2);
+	const deep = 1e-12 * Math.hypot(ev.re, ev.im);
 	// |L| is even about θ = π, so Newton cannot polish a crossover sitting exactly there: test it directly
 	ev.at(Math.PI);
 	const nyquist: Crossing = { f: Math.PI, re: ev.re, im: 0 };
 	const nyquistFinite = ev.denRelative > 1e-10;
-	const nyquistNonzero = !vanishesAtMinusOne(num);
+	const nyquistNonzero = !vanishesAtMinusOne(num) && Math.abs(ev.re) > deep;
 	const nyquistGain = nyquistNonzero && Math.abs(gainResidual(ev)) <= ACCEPT;
 	const gainX = confirm(ev, gainT, gainResidual, false);
 	const gainSet = gainX.filter((c) => Math.PI - c.f > 1e-7);
 	if (nyquistGain || gainX.length > gainSet.length) gainSet.push(nyquist);
-	const phase = confirm(ev, phaseT, phaseResidual, true).filter((c) => Math.PI - c.f > 1e-7);
+	const phase = confirm(ev, phaseT, phaseResidual, true).filter((c) => Math.PI - c.f > 1e-7 && Math.hypot(c.re, c.im) > deep);
 	const l0 = ev.atZero();
 	if (Number.isFinite(l0) && l0 < 0) phase.unshift({ f: 0, re: l0, im: 0 });
 	if (nyquist.re < 0 && nyquistFinite && nyquistNonzero) phase.push(nyquist);

@@ -5,9 +5,10 @@
 import type { Factor } from './blocks';
 import { ModelError, type PathSegment } from './issues';
 import { expm, type Matrix } from './linalg';
-import { add, fromRoots, mul, scale, trim, type Poly } from './polynomial';
+import { add, fromRoots, mul, powerOfTwo, scale, trim, type Poly } from './polynomial';
 import { cascade } from './cascade';
-import { transfer } from './state-space';
+import { fromOffsets } from './circle-fit';
+import { sampledNumerator } from './zeros';
 import { polyRoots, type Roots } from './roots';
 
 export function tustin(f: Factor, T: number): Factor {
@@ -69,8 +70,8 @@ export function tustin(f: Factor, T: number): Factor {
 /**
  * Zero-order hold: e^{[[A, b], [0, 0]]·T} of a well-scaled realisation (the block's own, or a
  * cascade of sections built from its roots) gives Φ and Γ. The denominator is exact (poles map to
- * e^{pT}); the numerator is sampled, N(z) = D(z)·(c(zI − Φ)⁻¹Γ + d), on a rotated unit circle and
- * recovered by an inverse DFT, a unitary and hence well-conditioned step.
+ * e^{pT}); the numerator N(z) = D(z)·(c(zI − Φ)⁻¹Γ + d) comes from its zeros, found and
+ * polished on N itself (zeros.ts).
  */
 export function zeroOrderHold(f: Factor, T: number, path: PathSegment[]): Factor {
 	const n = f.den.length - 1;
@@ -80,16 +81,19 @@ export function zeroOrderHold(f: Factor, T: number, path: PathSegment[]): Factor
 	const sPoles = f.poles ?? polyRoots(f.den);
 	const real = f.realisation ?? cascade(f.zeros ?? polyRoots(f.num), sPoles, f.num[f.num.length - 1] / f.den[n]);
 	const size = n + 1;
+	// Γ is linear in b: a unit-sized b keeps the augmented matrix's norm (and so the number of
+	// squarings, each costing accuracy) set by the dynamics, not by the block's gain
+	const bScale = powerOfTwo(Math.max(...real.b.map(Math.abs))) || 1;
 	const m: Matrix = Array.from({ length: size }, () => new Array<number>(size).fill(0));
 	for (let i = 0; i < n; i++) {
 		for (let j = 0; j < n; j++) m[i][j] = real.a[i][j] * T;
-		m[i][n] = real.b[i] * T;
+		m[i][n] = (real.b[i] / bScale) * T;
 	}
 	const e = expm(m);
 	if (!e.every((row) => row.every(Number.isFinite)))
 		throw new ModelError(path, `zero-order hold overflows at T = ${T} s (a pole too fast or too unstable for this sample time)`);
 	const phi = e.slice(0, n).map((row) => row.slice(0, n));
-	const gamma = e.slice(0, n).map((row) => row[n]);
+	const gamma = e.slice(0, n).map((row) => row[n] * bScale);
 
 	const zre = new Float64Array(n);
 	const zim = new Float64Array(n);
@@ -106,45 +110,9 @@ export function zeroOrderHold(f: Factor, T: number, path: PathSegment[]): Factor
 		off[i] = -Math.expm1(sPoles.re[i] * T) * Math.cos(b) + 2 * s * s;
 	}
 	const poles: Roots = { re: zre, im: zim, offRe: off };
-	return { num: sampledNumerator(phi, gamma, real.c, real.d, poles), den: fromRoots(zre, zim), poles };
-}
-
-/** Coefficients of D(z)·(c(zI − Φ)⁻¹Γ + d), degree ≤ n, from n + 1 points of a rotated unit circle. */
-function sampledNumerator(phi: Matrix, gamma: number[], c: number[], d: number, poles: Roots): Poly {
-	const n = phi.length;
-	const count = n + 1;
-	const offset = 0.3 + Math.PI / (2 * count);
-	const sr = new Float64Array(count);
-	const si = new Float64Array(count);
-	let largest = 0;
-	for (let k = 0; k < count; k++) {
-		const t = offset + (2 * Math.PI * k) / count;
-		const [xr, xi] = [Math.cos(t), Math.sin(t)];
-		const [gr, gi] = transfer(phi, gamma, c, xr, xi);
-		let dr = 1;
-		let di = 0;
-		for (let i = 0; i < n; i++) {
-			const fr = xr - poles.re[i];
-			const fi = xi - poles.im[i];
-			[dr, di] = [dr * fr - di * fi, dr * fi + di * fr];
-		}
-		const hr = gr + d;
-		sr[k] = hr * dr - gi * di;
-		si[k] = hr * di + gi * dr;
-		largest = Math.max(largest, Math.hypot(sr[k], si[k]));
-	}
-	const noise = 16 * count * Number.EPSILON * largest;
-	const out = new Array<number>(count).fill(0);
-	for (let i = 0; i < count; i++) {
-		let acc = 0;
-		for (let k = 0; k < count; k++) {
-			const t = -i * (offset + (2 * Math.PI * k) / count);
-			acc += sr[k] * Math.cos(t) - si[k] * Math.sin(t);
-		}
-		acc /= count;
-		out[i] = Math.abs(acc) <= noise ? 0 : acc;
-	}
-	return trim(out);
+	const phiMinusI = phi.map((row, i) => row.map((x, j) => x - (i === j ? 1 : 0)));
+	const { numW, zeros } = sampledNumerator({ m: phiMinusI, g: gamma, c: real.c, d: real.d, poles });
+	return { num: fromRoots(zeros.re, zeros.im, numW[numW.length - 1]), den: fromRoots(zre, zim), zeros, poles, numW, denW: fromOffsets(poles) };
 }
 
 export function discretise(f: Factor, method: 'zoh' | 'tustin', T: number, path: PathSegment[]): Factor {

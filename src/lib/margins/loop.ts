@@ -21,6 +21,8 @@ export interface CaseLoop {
 	T: number | null;
 	/** Positive multiplier: case gain × what-if gain × the normalisation of num and den. */
 	gain: number;
+	/** Case gain × what-if gain alone: L = caseGain · Π(factor num / factor den). */
+	caseGain: number;
 	factors: Factor[];
 	num: Poly;
 	den: Poly;
@@ -37,7 +39,8 @@ export interface CaseLoop {
 export type FactorCache = Map<Block, Factor>;
 
 export function blockFactor(block: RationalBlock, T: number | null, path: PathSegment[]): Factor {
-	const f = rationalFactor(block);
+	const continuous = T === null || block.domain === 's';
+	const f = rationalFactor(block, !continuous);
 	if (T !== null && block.domain === 's' && block.discretize) return discretise(f, block.discretize, T, path);
 	return f;
 }
@@ -123,7 +126,8 @@ export function buildCase(model: LoopModel, source: CaseSource, gainScale: numbe
 			factors.push({ num: [1], den: shiftUp([1], k), poles: { re: zeros, im: zeros.slice() } });
 		} else delaySamples = k;
 	}
-	return { name: source.name, T, gain, factors, num, den, delaySeconds, delaySamples, foldedDelay, measured, measuredUnstable };
+	const caseGain = source.gain * gainScale;
+	return { name: source.name, T, gain, caseGain, factors, num, den, delaySeconds, delaySamples, foldedDelay, measured, measuredUnstable };
 }
 
 export function buildCases(model: LoopModel, gainScale = 1): CaseLoop[] {

@@ -10,6 +10,7 @@ import { band, logGrid, withFeatures, type Feature } from './grid';
 import type { CaseLoop } from './loop';
 import { ContinuousEval, type LoopEval } from './rational-eval';
 import { loopRoots } from './response';
+import { loopForms } from './sampled-forms';
 import { SampledEval } from './sampled-eval';
 import { routhUnstable, schurUnstable } from './routh';
 import { sensitivity, type EndPoint, type GridValues } from './sensitivity';
@@ -37,9 +38,11 @@ export function rationalAnalysis(loop: CaseLoop): CaseAnalysis {
 		const { zeros, poles } = loopRoots(loop);
 		const lead = (loop.gain * loop.num[loop.num.length - 1]) / loop.den[loop.den.length - 1];
 		ev = new SampledEval(zeros, poles, lead);
-		cross = sampledCrossings(ev, loop.num, loop.den, loop.gain, loop.foldedDelay);
-		closed = (k) => sampledClosedLoop(loop.num, loop.den, k * loop.gain);
-		count = (k) => schurUnstable(add(loop.den, scale(loop.num, k * loop.gain)));
+		const forms = loopForms(loop);
+		const w = forms.w;
+		cross = sampledCrossings(ev, forms);
+		closed = (k) => sampledClosedLoop(w.num, w.den, k * w.gain);
+		count = (k) => schurUnstable(add(w.den, scale(w.num, k * w.gain)));
 	}
 	const cl = closed(1);
 	const grid = sensitivityGrid(ev, cl.poles, cross, loop.T === null ? (ev as ContinuousEval).w0 : 1);
@@ -113,6 +116,12 @@ function safetyNet(ev: LoopEval, grid: number[], { re, im }: GridValues, cross: 
 	// the sign of |L|² − 1 is all a bracket needs; logarithms only inside Brent
 	const lm = new Float64Array(n);
 	for (let i = 0; i < n; i++) lm[i] = re[i] * re[i] + im[i] * im[i] - 1;
+	// as in sampledCrossings: far below |L(θ = π/2)| a crossing is a zero on the circle, moved by rounding
+	let deep = 0;
+	if (ev.sampled) {
+		ev.at(Math.PI / 2);
+		deep = 1e-12 * Math.hypot(ev.re, ev.im);
+	}
 	const inside = (list: Crossing[], a: number, b: number) => list.filter((c) => c.f > a && c.f <= b).length;
 	const added: { gain: Crossing[]; phase: Crossing[] } = { gain: [], phase: [] };
 	for (let i = 0; i + 1 < n; i++) {
@@ -133,7 +142,7 @@ function safetyNet(ev: LoopEval, grid: number[], { re, im }: GridValues, cross: 
 				return ev.im / Math.hypot(ev.re, ev.im);
 			}, Math.log(a), Math.log(b));
 			ev.at(Math.exp(u));
-			if (ev.re < 0 && ev.denRelative > ON_POLE && ev.numRelative > ON_POLE)
+			if (ev.re < 0 && ev.denRelative > ON_POLE && ev.numRelative > ON_POLE && Math.hypot(ev.re, ev.im) > deep)
 				added.phase.push({ f: Math.exp(u), re: ev.re, im: ev.im });
 		}
 	}

@@ -4,7 +4,8 @@
  * of a delayed rational loop stay exact (the delay has |·| = 1).
  */
 import { brentRoot } from './brent';
-import { continuousCrossings, dedupe, ON_POLE, sampledCrossings, vanishesAtMinusOne, type Crossing } from './crossovers';
+import { continuousCrossings, dedupe, ON_POLE, sampledCrossings, vanishesAtMinusOne, type Crossing, type SampledLoopForms } from './crossovers';
+import { loopForms } from './sampled-forms';
 import type { Poly } from './polynomial';
 import type { CaseAnalysis } from './figures';
 import { gainCandidates, gainInterval, type GainCandidate } from './gain-margins';
@@ -26,13 +27,15 @@ export function responseAnalysis(loop: CaseLoop): CaseAnalysis {
 		: resp.sampled
 			? new SampledEval(resp.zeros, resp.poles, resp.lead)
 			: new ContinuousEval(loop.num, loop.den, loop.gain);
+	const forms = rational && resp.sampled ? loopForms(loop) : null;
 	const exact = rational
 		? rational instanceof ContinuousEval
 			? continuousCrossings(rational).gain
-			: sampledCrossings(rational, loop.num, loop.den, loop.gain).gain
+			: sampledCrossings(rational, forms as SampledLoopForms).gain
 		: null;
+	const numW = forms ? forms.w.num : [];
 	let grid = buildGrid(loop, resp, roots, (exact ?? []).map((c) => c.f));
-	let phase = phaseCrossings(resp, grid.samples, rational, loop.num);
+	let phase = phaseCrossings(resp, grid.samples, rational, numW);
 	let count = nyquistCount(loop, resp, roots, grid, phase, rational);
 	const z = unstableCount(count, 1);
 	const stable = z === 0;
@@ -40,7 +43,7 @@ export function responseAnalysis(loop: CaseLoop): CaseAnalysis {
 	// a delayed strictly proper loop always has a finite upper gain margin: look further out for it
 	for (let reach = 100; interval && !interval.high && count.neutral === 0 && !measured && !resp.sampled && resp.delay > 0 && reach <= 1e6; reach *= 100) {
 		grid = buildGrid(loop, resp, roots, (exact ?? []).map((c) => c.f), reach);
-		phase = phaseCrossings(resp, grid.samples, rational, loop.num);
+		phase = phaseCrossings(resp, grid.samples, rational, numW);
 		count = nyquistCount(loop, resp, roots, grid, phase, rational);
 		interval = walk(count, phase);
 	}
@@ -64,9 +67,14 @@ export function responseAnalysis(loop: CaseLoop): CaseAnalysis {
 	};
 }
 
-function phaseCrossings(resp: LoopResponse, samples: Sample[], rational: LoopEval | null, num: Poly): PhaseCrossing[] {
-	const phase = bracketPhase(resp, samples).filter((c) => resp.zeroDistance(c.f) > ON_POLE);
-	if (rational) addEnds(resp, rational, num, phase);
+function phaseCrossings(resp: LoopResponse, samples: Sample[], rational: LoopEval | null, numW: Poly): PhaseCrossing[] {
+	let deep = 0;
+	if (resp.sampled) {
+		resp.at(Math.PI / 2);
+		deep = 1e-12 * Math.hypot(resp.re, resp.im);
+	}
+	const phase = bracketPhase(resp, samples).filter((c) => resp.zeroDistance(c.f) > ON_POLE && Math.hypot(c.re, c.im) > deep);
+	if (rational) addEnds(resp, rational, numW, phase);
 	return phase;
 }
 
@@ -146,13 +154,14 @@ function bracketPhase(resp: LoopResponse, samples: Sample[]): PhaseCrossing[] {
 }
 
 /** The ω → 0 and Nyquist end points, where L is real: phase crossovers when negative. */
-function addEnds(resp: LoopResponse, rational: LoopEval, num: Poly, phase: PhaseCrossing[]): void {
+/** numW: the sampled loop's numerator in powers of w = z − 1. */
+function addEnds(resp: LoopResponse, rational: LoopEval, numW: Poly, phase: PhaseCrossing[]): void {
 	const l0 = rational.atZero();
 	if (Number.isFinite(l0) && l0 < 0) phase.unshift({ f: 0, re: l0, im: 0, dir: 0, end: true });
 	if (resp.sampled) {
 		rational.at(Math.PI);
 		const sign = resp.delay % 2 === 0 ? 1 : -1;
 		const l = rational.re * sign;
-		if (l < 0 && rational.denRelative > 1e-10 && !vanishesAtMinusOne(num)) phase.push({ f: Math.PI, re: l, im: 0, dir: 0, end: true });
+		if (l < 0 && rational.denRelative > 1e-10 && !vanishesAtMinusOne(numW)) phase.push({ f: Math.PI, re: l, im: 0, dir: 0, end: true });
 	}
 }

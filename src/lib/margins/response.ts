@@ -6,7 +6,8 @@
  * it needs no unwrapping on a grid and jumps only at roots on the boundary (by −180° per pole,
  * +180° per zero, the limit of a lightly damped stable root).
  */
-import { polyRoots, zRoots, type Roots } from './roots';
+import type { Factor } from './blocks';
+import { polyRoots, wRoots, zRoots, type Roots } from './roots';
 import type { CaseLoop, MeasuredData } from './loop';
 
 const LN10_20 = Math.LN10 / 20;
@@ -20,6 +21,9 @@ interface Interp {
 
 export function loopRoots(loop: CaseLoop): { zeros: Roots; poles: Roots } {
 	const find = loop.T === null ? polyRoots : zRoots;
+	// sampled factors with exact coefficients in w = z − 1 give their roots from those
+	const zerosOf = (f: Factor) => f.zeros ?? (f.numW ? wRoots(f.numW, true) : loop.T === null ? polyRoots(f.num) : zRoots(f.num, true));
+	const polesOf = (f: Factor) => f.poles ?? (f.denW ? wRoots(f.denW) : find(f.den));
 	const collect = (pick: (i: number) => Roots): Roots => {
 		const parts = loop.factors.map((_, i) => pick(i));
 		const n = parts.reduce((s, r) => s + r.re.length, 0);
@@ -36,8 +40,8 @@ export function loopRoots(loop: CaseLoop): { zeros: Roots; poles: Roots } {
 		return { re, im, offRe, atOne: parts.reduce((s, r) => s + (r.atOne ?? 0), 0) };
 	};
 	return {
-		zeros: collect((i) => loop.factors[i].zeros ?? find(loop.factors[i].num)),
-		poles: collect((i) => loop.factors[i].poles ?? find(loop.factors[i].den))
+		zeros: collect((i) => zerosOf(loop.factors[i])),
+		poles: collect((i) => polesOf(loop.factors[i]))
 	};
 }
 

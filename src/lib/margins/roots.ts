@@ -47,20 +47,50 @@ export function polyRoots(p: Poly): Roots {
  * coefficients: the roots stay those of the polynomial as written, but `atOne` records it, so
  * that L(z = 1) is taken as infinite rather than as the huge finite value rounding left.
  */
-export function zRoots(p: Poly): Roots {
+export function zRoots(p: Poly, zeros = false): Roots {
 	const q = trim(p);
 	let size = 0;
 	for (const c of q) size += Math.abs(c);
-	const a = shiftTo(q, 1);
+	return wRoots(shiftTo(q, 1), zeros, size);
+}
+
+/**
+ * The same from coefficients already in powers of w = z − 1 (`size`: the scale their rounding is
+ * relative to). `zeros`: a numerator's zeros at z = −1 that rounding split into a cluster (a
+ * Tustin map's, written out) are put back exactly, so that L is 0 at the Nyquist frequency.
+ */
+export function wRoots(a: Poly, zeros = false, size = a.reduce((s, x) => s + Math.abs(x), 0)): Roots {
 	const atOne = a[0] === 0 || Math.abs(a[0]) > 8 * Number.EPSILON * size ? 0 : 1;
-	const w = polyRoots(a);
-	const re = new Float64Array(w.re.length);
-	const offRe = new Float64Array(w.re.length);
-	for (let i = 0; i < re.length; i++) {
+	let rest = trim(a);
+	let minusOnes = 0;
+	if (zeros) {
+		const v = shiftTo(rest, -2);
+		const scale = v.reduce((s, x) => s + Math.abs(x), 0);
+		while (minusOnes < v.length - 1 && Math.abs(v[minusOnes]) <= 64 * Number.EPSILON * scale) minusOnes++;
+		for (let k = 0; k < minusOnes; k++) rest = deflate(rest, -2);
+	}
+	const w = polyRoots(rest);
+	const n = w.re.length + minusOnes;
+	const re = new Float64Array(n).fill(-1);
+	const im = new Float64Array(n);
+	const offRe = new Float64Array(n).fill(2);
+	for (let i = 0; i < w.re.length; i++) {
 		re[i] = 1 + w.re[i];
+		im[i] = w.im[i];
 		offRe[i] = -w.re[i];
 	}
-	return { re, im: w.im, offRe, atOne };
+	return { re, im, offRe, atOne };
+}
+
+/** p(x)/(x − r), dropping the (rounding-sized) remainder. */
+function deflate(p: Poly, r: number): Poly {
+	const out = new Array<number>(p.length - 1);
+	let carry = 0;
+	for (let i = p.length - 1; i >= 1; i--) {
+		carry = p[i] + carry * r;
+		out[i - 1] = carry;
+	}
+	return out;
 }
 
 function quadratic(q: Poly, re: Float64Array, im: Float64Array): void {

@@ -5,7 +5,7 @@
  * the count is well conditioned; any near-zero pivot returns null and the caller computes roots.
  */
 import { maxAbs, trim, type Poly } from './polynomial';
-import { bilinearFromShifted, shiftTo } from './shifted';
+import { bilinearFromShifted } from './shifted';
 
 const PIVOT = 1e-10;
 /** Beyond this order the array's growth makes root finding the safer count. */
@@ -39,13 +39,13 @@ export function routhUnstable(p: Poly): number | null {
 }
 
 /**
- * Roots with |z| ≥ 1, or null (degenerate, or a root near z = −1 that the map sends to infinity).
- * The map is applied to coefficients shifted exactly to z = 1, so clustered roots there survive it.
+ * Roots with |z| ≥ 1 of a polynomial given in powers of w = z − 1, or null (degenerate, or a root
+ * near z = −1 that the map sends to infinity). Clustered roots at z = 1 survive the map.
  */
-export function schurUnstable(p: Poly): number | null {
-	const q = trim(p);
+export function schurUnstable(pw: Poly): number | null {
+	const q = trim(pw);
 	if (q.length - 1 > MAX_ORDER) return null;
-	const s = trim(bilinearFromShifted(shiftTo(q, 1)));
+	const s = trim(bilinearFromShifted(q));
 	if (s.length !== q.length) return null;
 	// the leading coefficient is (−1)^n p(−1): near zero means a root near z = −1
 	if (Math.abs(s[s.length - 1]) <= PIVOT * maxAbs(s)) return null;

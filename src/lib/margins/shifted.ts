@@ -19,21 +19,22 @@ function twoSum(a: number, b: number): [number, number] {
 	return [s, a - (s - v) + (b - v)];
 }
 
-/** Coefficients of p(c + w) in powers of w (ascending), exact to rounding. */
-export function shiftTo(p: Poly, c: 1 | -1): Poly {
+/**
+ * Coefficients of p(c + w) in powers of w (ascending), exact to rounding: repeated synthetic
+ * division by (x − c) with the sums carried in double-double. c must be a power of two (or ±1)
+ * so that c·x is exact.
+ */
+export function shiftTo(p: Poly, c: number): Poly {
 	const n = p.length;
 	const hi = p.slice();
 	const lo = new Array<number>(n).fill(0);
-	// repeated synthetic division by (z − c); with c = −1 the same after flipping odd powers
-	const sign = (i: number) => (c === 1 || i % 2 === 0 ? 1 : -1);
-	for (let i = 0; i < n; i++) hi[i] *= sign(i);
 	for (let k = 0; k < n - 1; k++)
 		for (let i = n - 2; i >= k; i--) {
-			const [s, e] = twoSum(hi[i], hi[i + 1]);
+			const [s, e] = twoSum(hi[i], c * hi[i + 1]);
 			hi[i] = s;
-			lo[i] += e + lo[i + 1];
+			lo[i] += e + c * lo[i + 1];
 		}
-	return hi.map((x, i) => (x + lo[i]) * sign(i));
+	return hi.map((x, i) => x + lo[i]);
 }
 
 const polyMul = (a: Poly, b: Poly): Poly => {

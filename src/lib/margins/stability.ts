@@ -34,19 +34,18 @@ export function continuousClosedLoop(ev: ContinuousEval, k: number): ClosedLoop 
 const SHIFTED_MAX = 12;
 
 /**
- * A sampled loop, from its z-coefficients. Its roots are found in w = z − 1 (for high orders: in
- * z, then re-polished in w when close to 1), so the distance of a pole near z = 1 to the unit
+ * A sampled loop, from its polynomials in w = z − 1. Its roots are found in w (for high orders:
+ * in z, then re-polished in w when close to 1), so the distance of a pole near z = 1 to the unit
  * circle, |z|² − 1 = 2·Re w + |w|², is computed without cancellation.
  */
-export function sampledClosedLoop(num: Poly, den: Poly, gain: number): ClosedLoop {
-	const char = trim(add(den, scale(num, gain)));
-	const n = char.length - 1;
-	const shifted = shiftTo(char, 1);
+export function sampledClosedLoop(numW: Poly, denW: Poly, gain: number): ClosedLoop {
+	const shifted = trim(add(denW, scale(numW, gain)));
+	const n = shifted.length - 1;
 	let wr: Float64Array;
 	let wi: Float64Array;
 	if (n <= SHIFTED_MAX) ({ re: wr, im: wi } = polyRoots(shifted));
 	else {
-		const r = polyRoots(char);
+		const r = polyRoots(shiftTo(shifted, -1));
 		wr = r.re.map((x) => x - 1);
 		wi = r.im;
 		for (let i = 0; i < wr.length; i++)

@@ -7,20 +7,49 @@
  */
 import type { Factor } from './blocks';
 import { eigenvalues, type Matrix } from './linalg';
-import { add, fromRoots, powerOfTwo, scale, trim, type Poly } from './polynomial';
+import { fitOnCircle, fromOffsets } from './circle-fit';
+import { add, fromRoots, powerOfTwo, scale, trim } from './polynomial';
+import { sampledNumerator } from './zeros';
 import type { Roots } from './roots';
 import type { StateSpaceBlock } from './schema';
 
-export function stateSpaceFactor(block: StateSpaceBlock): Factor {
+/**
+ * `sampled`: a z-domain block, whose zeros are then polished on N itself near z = 1 (zeros.ts)
+ * and which is also returned in powers of w = z − 1.
+ */
+export function stateSpaceFactor(block: StateSpaceBlock, sampled = false): Factor {
 	const a = block.a;
 	const b = block.b.map((row) => row[0]);
 	const c = block.c[0];
 	const d = block.d ? block.d[0][0] : 0;
+	const n = a.length;
 	const rho = Math.max(...a.map((row) => row.reduce((s, x) => s + Math.abs(x), 0)), Number.MIN_VALUE);
 	const poles = snapIntegrators(pairUp(eigenvalues(a)), rho);
 	const den = fromRoots(poles.re, poles.im);
-	const strict = strictNumerator(a, b, c, poles);
-	return { num: trim(add(scale(den, d), strict)), den, poles, realisation: { a, b, c, d } };
+	const h = (xr: number, xi: number) => transfer(a, b, c, xr, xi);
+	const realisation = { a, b, c, d };
+	if (!sampled) {
+		const strict = fitOnCircle(n, 0, radiusOf(poles, 0), poles, h);
+		return { num: trim(add(scale(den, d), strict)), den, poles, realisation };
+	}
+	const offsets: Roots = { ...poles, offRe: Float64Array.from(poles.re, (x) => 1 - x) };
+	const m = a.map((row, i) => row.map((x, j) => x - (i === j ? 1 : 0)));
+	const { numW, zeros } = sampledNumerator({ m, g: b, c, d, poles: offsets });
+	return { num: fromRoots(zeros.re, zeros.im, numW[numW.length - 1]), den, zeros, poles: offsets, numW, denW: fromOffsets(offsets), realisation };
+}
+
+/** Geometric mean of the poles' distances from the centre (a power of two; 1 when all sit on it). */
+export function radiusOf(poles: Roots, centre: number): number {
+	let logSum = 0;
+	let count = 0;
+	for (let i = 0; i < poles.re.length; i++) {
+		const m = Math.hypot(poles.re[i] - centre, poles.im[i]);
+		if (m > 0) {
+			logSum += Math.log(m);
+			count++;
+		}
+	}
+	return count ? powerOfTwo(Math.exp(logSum / count)) : 1;
 }
 
 /** numeric.eig returns conjugate pairs whose parts may differ in the last bit: make them exact. */
@@ -80,55 +109,6 @@ function snapIntegrators(r: Roots, rho: number): Roots {
 			for (const i of small) re[i] = im[i] = 0;
 	}
 	return { re, im };
-}
-
-function strictNumerator(a: Matrix, b: number[], c: number[], poles: Roots): Poly {
-	const n = a.length;
-	let logSum = 0;
-	let count = 0;
-	for (let i = 0; i < n; i++) {
-		const m = Math.hypot(poles.re[i], poles.im[i]);
-		if (m > 0) {
-			logSum += Math.log(m);
-			count++;
-		}
-	}
-	const radius = count ? powerOfTwo(Math.exp(logSum / count)) : 1;
-	// a rotation off the real axis keeps the samples away from real eigenvalues
-	const offset = 0.3 + Math.PI / (2 * n);
-	const sr = new Float64Array(n);
-	const si = new Float64Array(n);
-	for (let k = 0; k < n; k++) {
-		const phi = offset + (2 * Math.PI * k) / n;
-		const [xr, xi] = [Math.cos(phi), Math.sin(phi)];
-		// G(s) = c (sI − A)⁻¹ b at s = radius·x, times D(s)/radius^n = Π(x − λ/radius)
-		const [gr, gi] = transfer(a, b, c, radius * xr, radius * xi);
-		let dr = 1;
-		let di = 0;
-		for (let i = 0; i < n; i++) {
-			const fr = xr - poles.re[i] / radius;
-			const fi = xi - poles.im[i] / radius;
-			[dr, di] = [dr * fr - di * fi, dr * fi + di * fr];
-		}
-		sr[k] = gr * dr - gi * di;
-		si[k] = gr * di + gi * dr;
-	}
-	// coefficient i of Ñ(x) = (1/n) Σ_k Ñ(x_k) x_k^(−i); N_sp(s) = radius^n · Ñ(s/radius)
-	let largest = 0;
-	for (let k = 0; k < n; k++) largest = Math.max(largest, Math.hypot(sr[k], si[k]));
-	// what the transform leaves where N_sp has a structural zero is its rounding: make it exact
-	const noise = 16 * n * Number.EPSILON * largest;
-	const out = new Array<number>(n).fill(0);
-	for (let i = 0; i < n; i++) {
-		let acc = 0;
-		for (let k = 0; k < n; k++) {
-			const phi = -i * (offset + (2 * Math.PI * k) / n);
-			acc += sr[k] * Math.cos(phi) - si[k] * Math.sin(phi);
-		}
-		acc /= n;
-		out[i] = Math.abs(acc) <= noise ? 0 : acc * radius ** (n - i);
-	}
-	return trim(out);
 }
 
 /** c·(sI − A)⁻¹·b by complex Gaussian elimination with partial pivoting. */

@@ -15,7 +15,7 @@ export function createBoss({ role, connectionString }: BossOptions): PgBoss {
 		connectionString: connectionString ?? databaseUrl(),
 		schema: BOSS_SCHEMA,
 		application_name: `headroom-${role}`,
-		max: role === 'web' ? 4 : 6,
+		max: role === 'web' ? 4 : 8,
 		supervise: role === 'worker',
 		schedule: role === 'worker',
 		migrate: true
