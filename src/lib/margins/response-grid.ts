@@ -108,19 +108,20 @@ function measuredFrequencies(loop: CaseLoop, resp: LoopResponse): number[] {
 	return out;
 }
 
-export function buildGrid(loop: CaseLoop, resp: LoopResponse, roots: RootClasses, gainF: number[], reach = 1) {
+/** The band follows the loop's roots and delay only (never its gain): scaling L moves margins, not grids. */
+export function buildGrid(loop: CaseLoop, resp: LoopResponse, roots: RootClasses, reach = 1) {
 	const measured = loop.measured.length > 0;
 	let base: number[];
 	if (measured) base = measuredFrequencies(loop, resp);
 	else {
-		const freqs = [...roots.freqs, ...gainF, ...roots.interior.map((r) => r.f)];
+		const freqs = [...roots.freqs, ...roots.interior.map((r) => r.f)];
 		if (resp.delay > 0) freqs.push(1 / resp.delay);
 		let [lo, hi] = band(freqs, 100, resp.sampled ? 0.1 : 1);
 		if (resp.sampled) {
 			lo = Math.min(lo, Math.PI / 1000);
 			// a pole at z = −1 is approached, not evaluated
 			hi = roots.high > 0 ? Math.PI * (1 - 1e-7) : Math.PI;
-		} else hi = continuousTop(resp, lo, hi * reach, gainF, reach);
+		} else hi = continuousTop(resp, lo, hi * reach, reach, loop.caseGain);
 		base = logGrid(lo, hi, 16);
 	}
 	const lo = base[0];
@@ -142,24 +143,25 @@ export function buildGrid(loop: CaseLoop, resp: LoopResponse, roots: RootClasses
 }
 
 /**
- * Past the point where |L| has fallen below −60 dB for good, further phase crossovers of a
- * delayed loop only add gain margins beyond 60 dB; the band stops there instead of winding on
- * (the grid's point budget bounds the work for very long delays). `reach` > 1 pushes the limit
- * out, for a loop whose gain margin lies beyond it.
+ * Past the point where |L| has fallen below −40 dB for good, further phase crossovers of a
+ * delayed loop only add gain margins beyond 40 dB; the band stops a little beyond there instead
+ * of winding on (the grid's point budget bounds the work for very long delays). `reach` > 1
+ * pushes the limit out, for a loop whose gain margin lies beyond it.
  */
-function continuousTop(resp: LoopResponse, lo: number, hi: number, gainF: number[], reach: number): number {
-	// the features' band may end while |L| is still above the floor (a slow roll-off): look beyond
+function continuousTop(resp: LoopResponse, lo: number, hi: number, reach: number, caseGain: number): number {
+	// the features' band may end while |L| is still above the floor (a slow roll-off): look beyond.
+	// The floor applies to the blocks without the case's gain, so that scaling a loop moves its
+	// gain margins, never the list of phase crossovers.
 	const coarse = logGrid(lo, hi * 1e4, 8);
 	let last = coarse[0];
-	const floor = Math.log(1e-3 / reach);
+	const floor = Math.log((1e-2 * caseGain) / reach);
 	for (const f of coarse) {
 		resp.at(f);
 		if (resp.lnMag >= floor) last = f;
 	}
 	// a biproper loop never falls below the floor: it keeps the features' band
 	if (last === coarse[coarse.length - 1]) return hi;
-	const top = Math.max(4 * last, ...gainF.map((f) => 10 * f));
-	return Math.min(hi * 1e4, Math.max(top, lo * 10));
+	return Math.min(hi * 1e4, Math.max(4 * last, lo * 10));
 }
 
 /** Halves intervals (geometrically) until the phase moves < 60° and |L| < e× between points. */

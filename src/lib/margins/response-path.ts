@@ -15,6 +15,7 @@ import { ContinuousEval, type LoopEval } from './rational-eval';
 import { SampledEval } from './sampled-eval';
 import { buildGrid, classifyRoots, closures, type RootClasses, type Sample } from './response-grid';
 import { LoopResponse } from './response';
+import { withFeatures } from './grid';
 import { sensitivity, type EndPoint } from './sensitivity';
 
 export function responseAnalysis(loop: CaseLoop): CaseAnalysis {
@@ -34,7 +35,7 @@ export function responseAnalysis(loop: CaseLoop): CaseAnalysis {
 			: sampledCrossings(rational, forms as SampledLoopForms).gain
 		: null;
 	const numW = forms ? forms.w.num : [];
-	let grid = buildGrid(loop, resp, roots, (exact ?? []).map((c) => c.f));
+	let grid = buildGrid(loop, resp, roots);
 	let phase = phaseCrossings(resp, grid.samples, rational, numW);
 	let count = nyquistCount(loop, resp, roots, grid, phase, rational);
 	const z = unstableCount(count, 1);
@@ -42,7 +43,7 @@ export function responseAnalysis(loop: CaseLoop): CaseAnalysis {
 	let interval = stable ? walk(count, phase) : null;
 	// a delayed strictly proper loop always has a finite upper gain margin: look further out for it
 	for (let reach = 100; interval && !interval.high && count.neutral === 0 && !measured && !resp.sampled && resp.delay > 0 && reach <= 1e6; reach *= 100) {
-		grid = buildGrid(loop, resp, roots, (exact ?? []).map((c) => c.f), reach);
+		grid = buildGrid(loop, resp, roots, reach);
 		phase = phaseCrossings(resp, grid.samples, rational, numW);
 		count = nyquistCount(loop, resp, roots, grid, phase, rational);
 		interval = walk(count, phase);
@@ -54,7 +55,8 @@ export function responseAnalysis(loop: CaseLoop): CaseAnalysis {
 		if (Number.isFinite(l0)) ends.push({ f: 0, re: l0, im: 0 });
 		if (rational instanceof ContinuousEval) ends.push({ f: Infinity, re: -Math.abs(rational.atInfinity()), im: 0 });
 	}
-	const freqs = grid.samples.map((s) => s.f);
+	// |1 + L| dips where L passes −1, between a gain crossover and a phase crossing: both on the grid
+	const freqs = withFeatures(grid.samples.map((s) => s.f), [], 0, Infinity, [...gain, ...phase].map((c) => c.f).filter((f) => f > 0 && Number.isFinite(f)));
 	return {
 		name: loop.name,
 		T: loop.T,
@@ -62,7 +64,7 @@ export function responseAnalysis(loop: CaseLoop): CaseAnalysis {
 		phase,
 		unstablePoles: Number.isFinite(z) ? Math.abs(z) : Math.max(1, unstableCount(count, 0)),
 		interval,
-		sensitivity: sensitivity(resp, freqs, ends),
+		sensitivity: sensitivity(resp, freqs, ends, undefined, { refine: 8, within: 3 }),
 		measuredOnly: measured || undefined
 	};
 }

@@ -26,13 +26,12 @@ export interface Sensitivity {
 	halfF: number;
 }
 
-const modulusOf = (re: number, im: number) => Math.hypot(1 + re, im);
+// squared: smooth at a minimum, where |1 + L| itself has a corner that parabolic steps cannot fit
+const modulusOf = (re: number, im: number) => (1 + re) * (1 + re) + im * im;
 const halfOf = (re: number, im: number) => {
-	const m = Math.hypot(1 + re, im);
-	return m === 0 ? Infinity : Math.hypot(1 - re, im) / (2 * m);
+	const m = (1 + re) * (1 + re) + im * im;
+	return m === 0 ? Infinity : ((1 - re) * (1 - re) + im * im) / (4 * m);
 };
-
-const REFINED = 2;
 
 /** L on the grid, when the caller has it already. */
 export interface GridValues {
@@ -40,7 +39,17 @@ export interface GridValues {
 	im: Float64Array;
 }
 
-export function sensitivity(ev: PointEval, grid: number[], ends: EndPoint[], values?: GridValues): Sensitivity {
+/**
+ * `refine`: how many local extrema are polished (those within `within`× of the best grid value);
+ * a delay's spiral has many near-equal dips, a rational loop one or two.
+ */
+export function sensitivity(
+	ev: PointEval,
+	grid: number[],
+	ends: EndPoint[],
+	values?: GridValues,
+	{ refine = 2, within = 1.2 } = {}
+): Sensitivity {
 	const n = grid.length;
 	const mod = new Float64Array(n);
 	const half = new Float64Array(n);
@@ -51,23 +60,26 @@ export function sensitivity(ev: PointEval, grid: number[], ends: EndPoint[], val
 		mod[i] = modulusOf(re, im);
 		half[i] = halfOf(re, im);
 		if (Number.isNaN(mod[i])) mod[i] = Infinity;
-		if (Number.isNaN(half[i])) half[i] = 0.5;
+		if (Number.isNaN(half[i])) half[i] = 0.25;
 	}
-	const out: Sensitivity = { modulus: Infinity, modulusF: NaN, half: -Infinity, halfF: NaN };
+	let bestMod = Infinity;
+	let bestModF = NaN;
+	let bestHalf = -Infinity;
+	let bestHalfF = NaN;
 	for (const e of ends) {
 		const m = modulusOf(e.re, e.im);
 		const h = halfOf(e.re, e.im);
-		if (m < out.modulus) [out.modulus, out.modulusF] = [m, e.f];
-		if (h > out.half) [out.half, out.halfF] = [h, e.f];
+		if (m < bestMod) [bestMod, bestModF] = [m, e.f];
+		if (h > bestHalf) [bestHalf, bestHalfF] = [h, e.f];
 	}
-	const refine = (values: Float64Array, sign: number, of: (re: number, im: number) => number): [number, number] => {
+	const polish = (vals: Float64Array, sign: number, of: (re: number, im: number) => number): [number, number] => {
 		let best = Infinity;
 		let bestF = NaN;
-		const found = extrema(values, sign);
+		const found = extrema(vals, sign, refine);
+		const limit = found.length ? sign * vals[found[0]] * (sign > 0 ? within * within : 1 / (within * within)) : 0;
 		for (const i of found) {
-			// a second extremum far from the first on the grid cannot win after refinement
-			if (i !== found[0] && Math.abs(values[i] - values[found[0]]) > 0.1 * Math.abs(values[found[0]])) continue;
-			if (sign * values[i] < best) [best, bestF] = [sign * values[i], grid[i]];
+			if (i !== found[0] && sign * vals[i] > limit) continue;
+			if (sign * vals[i] < best) [best, bestF] = [sign * vals[i], grid[i]];
 			const a = Math.log(grid[Math.max(0, i - 1)]);
 			const b = Math.log(grid[Math.min(n - 1, i + 1)]);
 			if (!(b > a)) continue;
@@ -75,20 +87,20 @@ export function sensitivity(ev: PointEval, grid: number[], ends: EndPoint[], val
 				ev.at(Math.exp(x));
 				const y = sign * of(ev.re, ev.im);
 				return Number.isNaN(y) ? Infinity : y;
-			}, a, b, 1e-8);
+			}, a, b, 1e-10);
 			if (v < best) [best, bestF] = [v, Math.exp(u)];
 		}
 		return [sign * best, bestF];
 	};
-	const [m, mf] = refine(mod, 1, modulusOf);
-	if (m < out.modulus) [out.modulus, out.modulusF] = [m, mf];
-	const [h, hf] = refine(half, -1, halfOf);
-	if (h > out.half) [out.half, out.halfF] = [h, hf];
-	return out;
+	const [m, mf] = polish(mod, 1, modulusOf);
+	if (m < bestMod) [bestMod, bestModF] = [m, mf];
+	const [h, hf] = polish(half, -1, halfOf);
+	if (h > bestHalf) [bestHalf, bestHalfF] = [h, hf];
+	return { modulus: Math.sqrt(bestMod), modulusF: bestModF, half: Math.sqrt(bestHalf), halfF: bestHalfF };
 }
 
-/** Indices of the REFINED smallest local minima of sign·values (band ends included). */
-function extrema(values: Float64Array, sign: number): number[] {
+/** Indices of the `count` smallest local minima of sign·values (band ends included). */
+function extrema(values: Float64Array, sign: number, count: number): number[] {
 	const n = values.length;
 	const idx: number[] = [];
 	for (let i = 0; i < n; i++) {
@@ -98,5 +110,5 @@ function extrema(values: Float64Array, sign: number): number[] {
 		if (v <= left && v <= right && Number.isFinite(v)) idx.push(i);
 	}
 	idx.sort((a, b) => sign * values[a] - sign * values[b]);
-	return idx.slice(0, REFINED);
+	return idx.slice(0, count);
 }

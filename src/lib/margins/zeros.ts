@@ -25,46 +25,29 @@ export interface SampledSystem {
 /** N in powers of w = z − 1, and its zeros (polished), from the system. */
 export function sampledNumerator(sys: SampledSystem): { numW: Poly; zeros: Roots } {
 	const n = sys.m.length;
-	const z = (wr: number, wi: number) => value(sys, wr, wi)[0];
+	const h = (xr: number, xi: number) => value(sys, xr - 1, xi)[0];
 	// coefficients in z from the unit circle (the block's whole response at rounding level); without
 	// a feedthrough d, N has degree n − 1 and a fitted z^n term would only be noise
-	const numZ = fitOnCircle(sys.d === 0 ? n : n + 1, 0, 1, sys.poles, (xr, xi) => {
-		const [hr, hi] = z(xr - 1, xi);
-		return [hr, hi];
-	});
-	const numW0 = shiftTo(numZ, 1);
-	const start = wRoots(numW0, true);
-	const re = start.re.slice();
-	const im = start.im.slice();
-	const off = start.offRe ? start.offRe.slice() : Float64Array.from(re, (x) => 1 - x);
-	for (let i = 0; i < re.length; i++) {
-		if (im[i] < 0 || off[i] === 2) continue; // conjugates follow their partner; exact −1 stays
-		let wr = -off[i];
-		let wi = im[i];
-		for (let it = 0; it < 8; it++) {
-			const step = newtonStep(sys, wr, wi);
-			if (!step) break;
-			const [sr, si] = step;
-			if (!Number.isFinite(sr) || Math.hypot(sr, si) > 0.5 * (Math.hypot(wr, wi) + 1e-300) + 1e-3) break;
-			wr -= sr;
-			wi = im[i] === 0 ? 0 : wi - si;
-			if (Math.hypot(sr, si) <= 1e-15 * Math.hypot(wr, wi)) break;
-		}
-		off[i] = -wr;
-		re[i] = 1 + wr;
-		im[i] = wi;
-		if (wi !== 0) {
-			const j = findPartner(start, i);
-			if (j >= 0) {
-				off[j] = -wr;
-				re[j] = 1 + wr;
-				im[j] = -wi;
-			}
-		}
-	}
-	const zeros: Roots = { re, im, offRe: off, atOne: start.atOne };
+	const numZ = fitOnCircle(sys.d === 0 ? n : n + 1, 0, 1, sys.poles, h);
+	const degree = numZ.length - 1;
 	// the leading coefficient exactly: d, or the first Markov parameter c·Φ^k·Γ that the degree names
-	const lead = sys.d !== 0 ? sys.d : markov(sys, n - 1 - (numW0.length - 1));
+	const lead = sys.d !== 0 ? sys.d : markov(sys, n - 1 - degree);
+	const far = wRoots(shiftTo(numZ, 1), true);
+	// zeros crowding at z = 1 come out of a fit on a circle of their own size
+	let radius = 0;
+	for (let i = 0; i < sys.poles.re.length; i++) radius = Math.max(radius, Math.hypot(-(sys.poles.offRe?.[i] ?? 1 - sys.poles.re[i]), sys.poles.im[i]));
+	radius = Math.min(0.5, Math.max(1e-12, 4 * radius));
+	const nearW = fitOnCircle(degree + 1, 1, radius, sys.poles, h);
+	const near = nearW.length - 1 === degree ? wRoots(nearW, false) : far;
+	const start = merge(far, near, 2 * radius, degree);
+	const { re, im } = refineOnN(sys, start);
+	const off = Float64Array.from(re, (x, i) => (start.offRe && start.offRe[i] === 2 ? 2 : -x));
+	const zeros: Roots = {
+		re: Float64Array.from(re, (x, i) => (off[i] === 2 ? -1 : 1 + x)),
+		im,
+		offRe: off,
+		atOne: far.atOne
+	};
 	let numW: Poly = [lead];
 	for (let i = 0; i < re.length; i++) {
 		const a = -off[i];
@@ -74,19 +57,88 @@ export function sampledNumerator(sys: SampledSystem): { numW: Poly; zeros: Roots
 	return { numW, zeros };
 }
 
+/** Zeros within `within` of z = 1 from the near fit, the rest from the far one (when the counts agree). */
+function merge(far: Roots, near: Roots, within: number, degree: number): Roots {
+	const pick = (r: Roots, inside: boolean) => {
+		const idx: number[] = [];
+		for (let i = 0; i < r.re.length; i++) {
+			const w = Math.hypot(r.offRe ? r.offRe[i] : 1 - r.re[i], r.im[i]);
+			if ((w <= within) === inside) idx.push(i);
+		}
+		return idx;
+	};
+	const a = pick(near, true);
+	const b = pick(far, false);
+	if (a.length + b.length !== degree) return far;
+	const take = (r: Roots, idx: number[]) => idx.map((i) => [r.re[i], r.im[i], r.offRe ? r.offRe[i] : 1 - r.re[i]]);
+	const all = [...take(near, a), ...take(far, b)];
+	return {
+		re: Float64Array.from(all, (x) => x[0]),
+		im: Float64Array.from(all, (x) => x[1]),
+		offRe: Float64Array.from(all, (x) => x[2])
+	};
+}
+
+/**
+ * Aberth's simultaneous iteration on N(w) itself (evaluated by linear solves), in w = z − 1,
+ * from the fitted zeros; exact zeros at z = −1 stay put. Returns w-coordinates (re, im).
+ */
+function refineOnN(sys: SampledSystem, start: Roots): { re: Float64Array; im: Float64Array } {
+	const m = start.re.length;
+	const re = Float64Array.from(start.re, (_, i) => -(start.offRe ? start.offRe[i] : 1 - start.re[i]));
+	const im = start.im.slice();
+	const fixed = Uint8Array.from(start.re, (_, i) => (start.offRe && start.offRe[i] === 2 ? 1 : 0));
+	for (let iter = 0; iter < 60; iter++) {
+		let moved = 0;
+		for (let k = 0; k < m; k++) {
+			if (fixed[k]) continue;
+			const step = newtonStep(sys, re[k], im[k]);
+			if (!step) continue;
+			const [rr, ri] = step;
+			let sr = 0;
+			let si = 0;
+			for (let j = 0; j < m; j++) {
+				if (j === k) continue;
+				const dr = re[k] - re[j];
+				const di = im[k] - im[j];
+				const d = dr * dr + di * di;
+				if (d === 0) continue;
+				sr += dr / d;
+				si -= di / d;
+			}
+			// correction = r / (1 − r·Σ)
+			const br = 1 - (rr * sr - ri * si);
+			const bi = -(rr * si + ri * sr);
+			const bd = br * br + bi * bi;
+			const cr = bd === 0 ? rr : (rr * br + ri * bi) / bd;
+			const ci = bd === 0 ? ri : (ri * br - rr * bi) / bd;
+			if (!Number.isFinite(cr) || !Number.isFinite(ci)) continue;
+			re[k] -= cr;
+			im[k] -= ci;
+			if (Math.hypot(cr, ci) > 1e-14 * Math.hypot(re[k], im[k])) moved++;
+		}
+		if (moved === 0) break;
+	}
+	// a real block's zeros are real or in conjugate pairs: make them exactly so
+	for (let k = 0; k < m; k++) if (Math.abs(im[k]) <= 1e-12 * Math.hypot(re[k], im[k])) im[k] = 0;
+	for (let k = 0; k < m; k++) {
+		if (im[k] <= 0) continue;
+		let best = -1;
+		for (let j = 0; j < m; j++)
+			if (im[j] < 0 && (best < 0 || Math.hypot(re[j] - re[k], im[j] + im[k]) < Math.hypot(re[best] - re[k], im[best] + im[k]))) best = j;
+		if (best < 0) continue;
+		const a = 0.5 * (re[k] + re[best]);
+		const b = 0.5 * (im[k] - im[best]);
+		[re[k], im[k], re[best], im[best]] = [a, b, a, -b];
+	}
+	return { re, im };
+}
+
 /** c·Φ^k·g with Φ = M + I. */
 function markov(sys: SampledSystem, k: number): number {
 	let v = sys.g.slice();
 	for (let step = 0; step < k; step++) v = sys.m.map((row, i) => row.reduce((s, x, j) => s + x * v[j], v[i]));
 	return sys.c.reduce((s, x, i) => s + x * v[i], 0);
-}
-
-function findPartner(r: Roots, i: number): number {
-	let best = -1;
-	for (let j = 0; j < r.re.length; j++)
-		if (j !== i && r.im[j] < 0 && (best < 0 || Math.hypot(r.re[j] - r.re[i], r.im[j] + r.im[i]) < Math.hypot(r.re[best] - r.re[i], r.im[best] + r.im[i])))
-			best = j;
-	return best;
 }
 
 function multiply(a: Poly, b: Poly): Poly {

@@ -40,6 +40,7 @@ async function lockLoop(em: EntityManager, actor: Actor, loopId: string): Promis
 function cleanFileName(name: string | undefined): string {
 	// Kept only for display; never used in a key or a path.
 	const base = (name ?? '').split(/[\\/]/).pop() ?? '';
+	// eslint-disable-next-line no-control-regex -- stripping control characters is the point
 	const clean = base.replace(/[\u0000-\u001f\u007f]/g, '').trim().slice(0, 200);
 	return clean || 'model.json';
 }
