@@ -61,10 +61,13 @@ export function hqr(a: Float64Array, n: number, wr: Float64Array, wi: Float64Arr
 	let p = 0;
 	let q = 0;
 	let r = 0;
+	/* eslint-disable no-useless-assignment -- declared once outside the QR sweep for speed; every
+	   path assigns them before use */
 	let x = 0;
 	let y = 0;
 	let z = 0;
 	let ww = 0;
+	/* eslint-enable no-useless-assignment */
 	while (nn >= 1) {
 		let its = 0;
 		let l: number;

@@ -113,6 +113,7 @@ export function thetaFromU(u: number, c: 1 | -1): number {
 export function bilinearFromShifted(a: Poly): Poly {
 	const n = a.length - 1;
 	let out = new Array<number>(n + 1).fill(0);
+	// eslint-disable-next-line no-useless-assignment -- reassigned in the loop before its first use
 	let oneMinus: Poly = [1];
 	const powers: Poly[] = [[1]];
 	for (let i = 1; i <= n; i++) powers.push(polyMul(powers[i - 1], [1, -1]));
