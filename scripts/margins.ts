@@ -15,8 +15,16 @@ async function one(file: string): Promise<{ line: Line; ok: boolean }> {
 		text = await readFile(file, 'utf8');
 	} catch (e) {
 		const code = (e as NodeJS.ErrnoException).code;
-		const why = code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'is a directory' : (code ?? 'unreadable');
-		return { line: { file, error: { message: `cannot read the file: ${why}`, path: '' } }, ok: false };
+		const why =
+			code === 'ENOENT'
+				? 'no such file'
+				: code === 'EISDIR'
+					? 'is a directory'
+					: (code ?? 'unreadable');
+		return {
+			line: { file, error: { message: `cannot read the file: ${why}`, path: '' } },
+			ok: false
+		};
 	}
 	const parsed = parseModelText(text, file);
 	if (!parsed.ok) return { line: { file, error: parsed.issue }, ok: false };
@@ -24,7 +32,10 @@ async function one(file: string): Promise<{ line: Line; ok: boolean }> {
 		return { line: { file, ...computeMargins(parsed.model) }, ok: true };
 	} catch (e) {
 		// an engine fault, not the file's: still one line, still no stack trace
-		return { line: { file, error: { message: `internal error: ${(e as Error).message}`, path: '' } }, ok: false };
+		return {
+			line: { file, error: { message: `internal error: ${(e as Error).message}`, path: '' } },
+			ok: false
+		};
 	}
 }
 

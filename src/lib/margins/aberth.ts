@@ -19,7 +19,8 @@ export function aberth(
 	} else {
 		// radius from the coefficients' geometric growth; angles offset so no guess is real
 		let radius = 0;
-		for (let i = 0; i < n; i++) radius = Math.max(radius, Math.pow(Math.abs(p[i] / p[n]), 1 / (n - i)));
+		for (let i = 0; i < n; i++)
+			radius = Math.max(radius, Math.pow(Math.abs(p[i] / p[n]), 1 / (n - i)));
 		if (!(radius > 0)) radius = 1;
 		for (let k = 0; k < n; k++) {
 			const a = (2 * Math.PI * k) / n + 0.4;

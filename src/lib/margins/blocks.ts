@@ -30,7 +30,9 @@ export function rationalFactor(block: RationalBlock, sampled = false): Factor {
 			const num = fromDescending(block.numerator);
 			const den = fromDescending(block.denominator);
 			// the file's z-coefficients are exact: shifted exactly, they hold everything near z = 1
-			return sampled ? { num, den, numW: trim(shiftTo(num, 1)), denW: trim(shiftTo(den, 1)) } : { num, den };
+			return sampled
+				? { num, den, numW: trim(shiftTo(num, 1)), denW: trim(shiftTo(den, 1)) }
+				: { num, den };
 		}
 		case 'factored':
 			return factored(block);
@@ -42,7 +44,8 @@ export function rationalFactor(block: RationalBlock, sampled = false): Factor {
 }
 
 /** A root as written in the file. */
-export const rootOf = (r: number | [number, number]): [number, number] => (typeof r === 'number' ? [r, 0] : r);
+export const rootOf = (r: number | [number, number]): [number, number] =>
+	typeof r === 'number' ? [r, 0] : r;
 
 /**
  * Only the upper member of each conjugate pair is read (its partner was checked to exist), so the
@@ -67,7 +70,12 @@ export function rootList(list: readonly (number | [number, number])[] | undefine
 function factored(block: FactoredBlock): Factor {
 	const zeros = rootList(block.zeros);
 	const poles = rootList(block.poles);
-	return { num: fromRoots(zeros.re, zeros.im, block.gain ?? 1), den: fromRoots(poles.re, poles.im), zeros, poles };
+	return {
+		num: fromRoots(zeros.re, zeros.im, block.gain ?? 1),
+		den: fromRoots(poles.re, poles.im),
+		zeros,
+		poles
+	};
 }
 
 function pid(block: PidBlock): Factor {

@@ -72,7 +72,12 @@ export function brentRoot(
 }
 
 /** Minimum of f on [a, b] (golden section with parabolic steps). Returns [x, f(x)]. */
-export function brentMin(f: (x: number) => number, a: number, b: number, tol = 1e-10): [number, number] {
+export function brentMin(
+	f: (x: number) => number,
+	a: number,
+	b: number,
+	tol = 1e-10
+): [number, number] {
 	const golden = 0.3819660112501051;
 	let x = a + golden * (b - a);
 	let w = x;
@@ -121,4 +126,41 @@ export function brentMin(f: (x: number) => number, a: number, b: number, tol = 1
 		}
 	}
 	return [x, fx];
+}
+
+/**
+ * Minimum of a smooth f from a bracketing triple (a, m, b), f(m) ≤ f(a), f(b), by successive
+ * parabolic interpolation with bisection as the safeguard. The triple comes from a grid, so a
+ * well-resolved minimum costs a handful of evaluations instead of a fresh Brent search.
+ */
+export function parabolicMin(
+	f: (x: number) => number,
+	a: number,
+	fa: number,
+	m: number,
+	fm: number,
+	b: number,
+	fb: number,
+	tol = 1e-10
+): [number, number] {
+	for (let iter = 0; iter < 40 && b - a > tol * (Math.abs(m) + 1); iter++) {
+		const p = (m - a) * (fm - fb);
+		const q = (m - b) * (fm - fa);
+		const den = 2 * (p - q);
+		let u = den !== 0 ? m - ((m - a) * p - (m - b) * q) / den : NaN;
+		// stay strictly inside and off the middle point, or bisect the larger side
+		const guard = 0.01 * (b - a);
+		if (!(u > a + guard && u < b - guard) || Math.abs(u - m) < 1e-3 * tol)
+			u = m - a > b - m ? 0.5 * (a + m) : 0.5 * (m + b);
+		const fu = f(u);
+		if (fu < fm) {
+			if (u < m) [b, fb] = [m, fm];
+			else [a, fa] = [m, fm];
+			const step = Math.abs(u - m);
+			[m, fm] = [u, fu];
+			if (step <= tol * (Math.abs(m) + 1)) break;
+		} else if (u < m) [a, fa] = [u, fu];
+		else [b, fb] = [u, fu];
+	}
+	return [m, fm];
 }

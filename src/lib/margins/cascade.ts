@@ -23,7 +23,8 @@ interface Section {
 
 type Root = [number, number];
 
-const list = (r: Roots): Root[] => Array.from(r.re, (x, i) => [x, r.im[i]] as Root).filter(([, y]) => y >= 0);
+const list = (r: Roots): Root[] =>
+	Array.from(r.re, (x, i) => [x, r.im[i]] as Root).filter(([, y]) => y >= 0);
 const quadratic = ([x, y]: Root): number[] => [x * x + y * y, -2 * x, 1];
 const linear = ([x]: Root): number[] => [-x, 1];
 const mul = (a: number[], b: number[]) => {
@@ -34,7 +35,9 @@ const mul = (a: number[], b: number[]) => {
 
 /** Sections for the given roots (complex ones listed once per pair here, im > 0). */
 function sections(poles: Root[], zeros: Root[]): Section[] {
-	const pairs = poles.filter(([, y]) => y > 0).map((p) => ({ den: quadratic(p), num: [1] as number[] }));
+	const pairs = poles
+		.filter(([, y]) => y > 0)
+		.map((p) => ({ den: quadratic(p), num: [1] as number[] }));
 	const reals = poles.filter(([, y]) => y === 0);
 	// a complex zero pair needs a second-order section: pair up real poles when the pairs run out
 	const zeroPairs = zeros.filter(([, y]) => y > 0);

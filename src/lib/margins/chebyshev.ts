@@ -45,7 +45,8 @@ export function chebyshevRealRoots(coefficients: readonly number[], kind: 'T' | 
 	}
 	const out: number[] = [];
 	for (let i = 0; i < n; i++)
-		if (Math.abs(im[i]) <= NEAR_REAL && im[i] >= 0 && Math.abs(re[i]) <= 1 + NEAR_REAL) out.push(Math.max(-1, Math.min(1, re[i])));
+		if (Math.abs(im[i]) <= NEAR_REAL && im[i] >= 0 && Math.abs(re[i]) <= 1 + NEAR_REAL)
+			out.push(Math.max(-1, Math.min(1, re[i])));
 	return out;
 }
 

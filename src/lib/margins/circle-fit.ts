@@ -17,7 +17,9 @@ export function fitOnCircle(
 ): Poly {
 	const nD = poles.re.length;
 	// pᵢ − centre, from the precise offsets when the centre is z = 1
-	const qr = Float64Array.from(poles.re, (x, i) => (centre === 1 && poles.offRe ? -poles.offRe[i] : x - centre));
+	const qr = Float64Array.from(poles.re, (x, i) =>
+		centre === 1 && poles.offRe ? -poles.offRe[i] : x - centre
+	);
 	// a rotation off the real axis keeps the samples away from real poles
 	const offset = 0.3 + Math.PI / (2 * count);
 	const sr = new Float64Array(count);

@@ -4,10 +4,9 @@
  * Continuous, with w = ω²:  N(jω) = A_N(w) + jω·B_N(w), so
  *   |L| = 1   ⇔  g²(A_N² + w B_N²) − (A_D² + w B_D²) = 0
  *   L real    ⇔  Im(N·conj D)/ω = B_N A_D − A_N B_D = 0.
- * Sampled, on z = e^{jθ}: |N|² is a cosine series and Im(N·conj D) a sine series. Both are
- * written as polynomials in y = 1 − cos θ = 2 sin²(θ/2) (sin θ factored out of the sine series),
- * which keeps the low-frequency end, where a fast-sampled loop crosses over, at full relative
- * precision; the mirrored variable u = 1 + cos θ does the same near the Nyquist frequency.
+ * Sampled, on z = e^{jθ}: |N|² is a cosine series and Im(N·conj D) a sine series (Chebyshev
+ * series in cos θ, for the colleague matrix of high-order loops; low orders use the exactly
+ * shifted polynomials of shifted.ts instead).
  */
 import { add, mul, scale, shiftUp, sub, type Poly } from './polynomial';
 
@@ -47,7 +46,8 @@ export function sampledGainSeries(num: Poly, den: Poly, g: number): number[] {
 	const rn = autocorrelation(num);
 	const rd = autocorrelation(den);
 	const out = new Array<number>(Math.max(rn.length, rd.length)).fill(0);
-	for (let m = 0; m < out.length; m++) out[m] = (m === 0 ? 1 : 2) * (g * g * (rn[m] ?? 0) - (rd[m] ?? 0));
+	for (let m = 0; m < out.length; m++)
+		out[m] = (m === 0 ? 1 : 2) * (g * g * (rn[m] ?? 0) - (rd[m] ?? 0));
 	return out;
 }
 
@@ -63,34 +63,3 @@ export function sampledPhaseSeries(num: Poly, den: Poly): number[] {
 		}
 	return out;
 }
-
-/** t[m][j]: coefficient of y^j in cos(mθ) = T_m(1 − y), from the ratio of consecutive terms. */
-function shiftedChebyshev(maxM: number): number[][] {
-	const t: number[][] = [];
-	for (let m = 0; m <= maxM; m++) {
-		const row = [1];
-		for (let j = 0; j < m; j++) row.push((row[j] * -(m * m - j * j)) / ((2 * j + 1) * (j + 1)));
-		t.push(row);
-	}
-	return t;
-}
-
-export function cosineSeriesToY(a: number[]): Poly {
-	const t = shiftedChebyshev(a.length - 1);
-	const out = new Array<number>(a.length).fill(0);
-	for (let m = 0; m < a.length; m++) if (a[m] !== 0) for (let j = 0; j <= m; j++) out[j] += a[m] * t[m][j];
-	return out;
-}
-
-/** Σ b_m sin mθ = sin θ · Q(y); U_(m−1)(1 − y) = −(1/m) d/dy T_m(1 − y). */
-export function sineSeriesToY(b: number[]): Poly {
-	const t = shiftedChebyshev(b.length - 1);
-	const out = new Array<number>(Math.max(1, b.length - 1)).fill(0);
-	for (let m = 1; m < b.length; m++)
-		if (b[m] !== 0) for (let j = 1; j <= m; j++) out[j - 1] += (-b[m] * j * t[m][j]) / m;
-	return out;
-}
-
-/** The same series seen from θ' = π − θ: cos mθ = (−1)^m cos mθ', sin mθ = (−1)^(m+1) sin mθ'. */
-export const mirrorCosine = (a: number[]): number[] => a.map((x, m) => (m % 2 === 0 ? x : -x));
-export const mirrorSine = (b: number[]): number[] => b.map((x, m) => (m % 2 === 1 ? x : -x));

@@ -3,7 +3,12 @@
  * itself and kept only when L confirms them. Near-real complex roots are tried as well, because
  * a tangent crossing (|L| touching 1) is a double root that rounding splits into a complex pair.
  */
-import { continuousGainPoly, continuousPhasePoly, sampledGainSeries, sampledPhaseSeries } from './crossover-polys';
+import {
+	continuousGainPoly,
+	continuousPhasePoly,
+	sampledGainSeries,
+	sampledPhaseSeries
+} from './crossover-polys';
 import { gainPolyU, phasePolyU, shiftTo, thetaFromU } from './shifted';
 import { maxAbs, type Poly } from './polynomial';
 import type { ContinuousEval, LoopEval } from './rational-eval';
@@ -34,7 +39,9 @@ function realRootsIn(p: Poly, lo: number, hi: number): number[] {
 		const y = r.im[i];
 		if (y < 0) continue; // its conjugate stands for the pair
 		if (y > NEAR_REAL * Math.abs(x)) continue;
-		for (const c of y === 0 ? [x] : [x - y, x, x + y]) if (c >= lo && c <= hi) out.push(c);
+		// beyond 1e-3 the pair is no tangency: its real part alone is worth a look
+		for (const c of y === 0 || y > 1e-3 * Math.abs(x) ? [x] : [x - y, x, x + y])
+			if (c >= lo && c <= hi) out.push(c);
 	}
 	return out;
 }
@@ -97,7 +104,12 @@ function polish(ev: LoopEval, f0: number, residual: Residual, phase: boolean): [
  */
 export const ON_POLE = 1e-7;
 
-function confirm(ev: LoopEval, candidates: number[], residual: Residual, phase: boolean): Crossing[] {
+function confirm(
+	ev: LoopEval,
+	candidates: number[],
+	residual: Residual,
+	phase: boolean
+): Crossing[] {
 	const out: Crossing[] = [];
 	for (const c of candidates) {
 		if (!(c > 0) || !Number.isFinite(c)) continue;
@@ -156,7 +168,9 @@ export function continuousCrossings(ev: ContinuousEval): RationalCrossings {
 	// is that asymptote (−180°, relative degree 2) touched by rounding
 	const beyond = 1e4 * ev.w0 * Math.max(rootBound(n), rootBound(d));
 	const gain = confirm(ev, gainW.map(toOmega), gainResidual, false);
-	const phase = confirm(ev, phaseW.map(toOmega), phaseResidual, true).filter((c) => beyond === 0 || c.f <= beyond);
+	const phase = confirm(ev, phaseW.map(toOmega), phaseResidual, true).filter(
+		(c) => beyond === 0 || c.f <= beyond
+	);
 	const l0 = ev.atZero();
 	if (Number.isFinite(l0) && l0 < 0) phase.unshift({ f: 0, re: l0, im: 0 });
 	return { gain, phase };
@@ -188,8 +202,11 @@ function circleCandidates(numW: Poly, denW: Poly, g: number): { gain: number[]; 
 		const G = gainPolyU(n, d, g, c);
 		const Q = phasePolyU(n, d, c);
 		// the two halves meet at u = 2; the end points themselves are judged separately
-		if (!vanishes(G, scale)) for (const u of realRootsIn(G, c === 1 ? 1e-300 : -1e-12, 2 + 1e-6)) gain.push(thetaFromU(u, c));
-		if (!vanishes(Q, scale)) for (const u of realRootsIn(Q, 1e-300, 2 + 1e-6)) phase.push(thetaFromU(u, c));
+		if (!vanishes(G, scale))
+			for (const u of realRootsIn(G, c === 1 ? 1e-300 : -1e-12, 2 + 1e-6))
+				gain.push(thetaFromU(u, c));
+		if (!vanishes(Q, scale))
+			for (const u of realRootsIn(Q, 1e-300, 2 + 1e-6)) phase.push(thetaFromU(u, c));
 	}
 	return { gain, phase };
 }
@@ -219,7 +236,8 @@ const orderOf = (f: { num: Poly; den: Poly }) => Math.max(f.num.length, f.den.le
 function candidatesOf(forms: SampledLoopForms, which: 'w' | 'undelayed') {
 	const w = forms[which];
 	if (orderOf(w) <= POWER_BASIS_MAX) return circleCandidates(w.num, w.den, w.gain);
-	const z = which === 'w' ? forms.z : { num: shiftTo(w.num, -1), den: shiftTo(w.den, -1), gain: w.gain };
+	const z =
+		which === 'w' ? forms.z : { num: shiftTo(w.num, -1), den: shiftTo(w.den, -1), gain: w.gain };
 	return seriesCandidates(z.num, z.den, z.gain);
 }
 
@@ -241,7 +259,9 @@ export function sampledCrossings(ev: LoopEval, forms: SampledLoopForms): Rationa
 	const gainX = confirm(ev, gainT, gainResidual, false);
 	const gainSet = gainX.filter((c) => Math.PI - c.f > 1e-7);
 	if (nyquistGain || gainX.length > gainSet.length) gainSet.push(nyquist);
-	const phase = confirm(ev, phaseT, phaseResidual, true).filter((c) => Math.PI - c.f > 1e-7 && Math.hypot(c.re, c.im) > deep);
+	const phase = confirm(ev, phaseT, phaseResidual, true).filter(
+		(c) => Math.PI - c.f > 1e-7 && Math.hypot(c.re, c.im) > deep
+	);
 	const l0 = ev.atZero();
 	if (Number.isFinite(l0) && l0 < 0) phase.unshift({ f: 0, re: l0, im: 0 });
 	if (nyquist.re < 0 && nyquistFinite && nyquistNonzero) phase.push(nyquist);

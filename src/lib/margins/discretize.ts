@@ -76,10 +76,21 @@ export function tustin(f: Factor, T: number): Factor {
 export function zeroOrderHold(f: Factor, T: number, path: PathSegment[]): Factor {
 	const n = f.den.length - 1;
 	if (f.num.length - 1 > n)
-		throw new ModelError(path, 'zero-order hold needs a proper block (numerator degree ≤ denominator degree)');
-	if (n === 0) return { num: f.num, den: f.den, zeros: { re: new Float64Array(0), im: new Float64Array(0) }, poles: f.poles };
+		throw new ModelError(
+			path,
+			'zero-order hold needs a proper block (numerator degree ≤ denominator degree)'
+		);
+	if (n === 0)
+		return {
+			num: f.num,
+			den: f.den,
+			zeros: { re: new Float64Array(0), im: new Float64Array(0) },
+			poles: f.poles
+		};
 	const sPoles = f.poles ?? polyRoots(f.den);
-	const real = f.realisation ?? cascade(f.zeros ?? polyRoots(f.num), sPoles, f.num[f.num.length - 1] / f.den[n]);
+	const real =
+		f.realisation ??
+		cascade(f.zeros ?? polyRoots(f.num), sPoles, f.num[f.num.length - 1] / f.den[n]);
 	const size = n + 1;
 	// Γ is linear in b: a unit-sized b keeps the augmented matrix's norm (and so the number of
 	// squarings, each costing accuracy) set by the dynamics, not by the block's gain
@@ -91,7 +102,10 @@ export function zeroOrderHold(f: Factor, T: number, path: PathSegment[]): Factor
 	}
 	const e = expm(m);
 	if (!e.every((row) => row.every(Number.isFinite)))
-		throw new ModelError(path, `zero-order hold overflows at T = ${T} s (a pole too fast or too unstable for this sample time)`);
+		throw new ModelError(
+			path,
+			`zero-order hold overflows at T = ${T} s (a pole too fast or too unstable for this sample time)`
+		);
 	const phi = e.slice(0, n).map((row) => row.slice(0, n));
 	const gamma = e.slice(0, n).map((row) => row[n] * bScale);
 
@@ -101,7 +115,10 @@ export function zeroOrderHold(f: Factor, T: number, path: PathSegment[]): Factor
 	for (let i = 0; i < n; i++) {
 		const mag = Math.exp(sPoles.re[i] * T);
 		if (!Number.isFinite(mag))
-			throw new ModelError(path, `zero-order hold overflows: pole ${sPoles.re[i]} with T = ${T} s gives e^(pT) = ∞`);
+			throw new ModelError(
+				path,
+				`zero-order hold overflows: pole ${sPoles.re[i]} with T = ${T} s gives e^(pT) = ∞`
+			);
 		const b = sPoles.im[i] * T;
 		zre[i] = mag * Math.cos(b);
 		zim[i] = sPoles.im[i] === 0 ? 0 : mag * Math.sin(b);
@@ -112,9 +129,21 @@ export function zeroOrderHold(f: Factor, T: number, path: PathSegment[]): Factor
 	const poles: Roots = { re: zre, im: zim, offRe: off };
 	const phiMinusI = phi.map((row, i) => row.map((x, j) => x - (i === j ? 1 : 0)));
 	const { numW, zeros } = sampledNumerator({ m: phiMinusI, g: gamma, c: real.c, d: real.d, poles });
-	return { num: fromRoots(zeros.re, zeros.im, numW[numW.length - 1]), den: fromRoots(zre, zim), zeros, poles, numW, denW: fromOffsets(poles) };
+	return {
+		num: fromRoots(zeros.re, zeros.im, numW[numW.length - 1]),
+		den: fromRoots(zre, zim),
+		zeros,
+		poles,
+		numW,
+		denW: fromOffsets(poles)
+	};
 }
 
-export function discretise(f: Factor, method: 'zoh' | 'tustin', T: number, path: PathSegment[]): Factor {
+export function discretise(
+	f: Factor,
+	method: 'zoh' | 'tustin',
+	T: number,
+	path: PathSegment[]
+): Factor {
 	return method === 'zoh' ? zeroOrderHold(f, T, path) : tustin(f, T);
 }

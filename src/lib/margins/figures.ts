@@ -22,7 +22,8 @@ export interface CaseAnalysis {
 
 const DEG = 180 / Math.PI;
 
-export const radPerSecond = (a: { T: number | null }, f: number): number => (a.T === null ? f : f / a.T);
+export const radPerSecond = (a: { T: number | null }, f: number): number =>
+	a.T === null ? f : f / a.T;
 
 const hzOf = (a: { T: number | null }, f: number): number | null =>
 	Number.isFinite(f) ? radPerSecond(a, f) / (2 * Math.PI) : null;
@@ -33,7 +34,8 @@ export function phaseMarginDeg(re: number, im: number): number {
 	return pm > 180 ? pm - 360 : pm;
 }
 
-export const gainMarginDb = (re: number, im: number): number => -20 * Math.log10(Math.hypot(re, im));
+export const gainMarginDb = (re: number, im: number): number =>
+	-20 * Math.log10(Math.hypot(re, im));
 
 export function diskMargin(alpha: number): DiskMargin {
 	return {
@@ -45,14 +47,20 @@ export function diskMargin(alpha: number): DiskMargin {
 
 export function toCaseResult(a: CaseAnalysis): CaseResult {
 	const stable = a.unstablePoles === 0;
-	const gainCrossovers = a.gain.map((c) => ({ hz: hzOf(a, c.f) as number, phaseMarginDeg: phaseMarginDeg(c.re, c.im) }));
-	const phaseCrossovers = a.phase.map((c) => ({ hz: hzOf(a, c.f) as number, gainMarginDb: gainMarginDb(c.re, c.im) }));
+	const gainCrossovers = a.gain.map((c) => ({
+		hz: hzOf(a, c.f) as number,
+		phaseMarginDeg: phaseMarginDeg(c.re, c.im)
+	}));
+	const phaseCrossovers = a.phase.map((c) => ({
+		hz: hzOf(a, c.f) as number,
+		gainMarginDb: gainMarginDb(c.re, c.im)
+	}));
 	let pm: { deg: number; hz: number } | null = null;
 	let delay: number | null = null;
 	a.gain.forEach((c, i) => {
 		const deg = gainCrossovers[i].phaseMarginDeg;
 		if (!pm || Math.abs(deg) < Math.abs(pm.deg)) pm = { deg, hz: gainCrossovers[i].hz };
-		const seconds = ((((deg % 360) + 360) % 360) / DEG) / radPerSecond(a, c.f);
+		const seconds = (((deg % 360) + 360) % 360) / DEG / radPerSecond(a, c.f);
 		if (delay === null || seconds < delay) delay = seconds;
 	});
 	const high = stable ? (a.interval?.high ?? null) : null;

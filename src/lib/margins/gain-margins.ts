@@ -18,7 +18,10 @@ export interface GainInterval {
 	low: GainCandidate | null;
 }
 
-export function gainCandidates(phase: { f: number; re: number; im: number }[], extra: GainCandidate[] = []): GainCandidate[] {
+export function gainCandidates(
+	phase: { f: number; re: number; im: number }[],
+	extra: GainCandidate[] = []
+): GainCandidate[] {
 	const out = [...extra];
 	for (const p of phase) {
 		const mag = Math.hypot(p.re, p.im);
@@ -27,7 +30,10 @@ export function gainCandidates(phase: { f: number; re: number; im: number }[], e
 	return out.sort((a, b) => a.k - b.k);
 }
 
-export function gainInterval(candidates: GainCandidate[], stableAt: (k: number) => boolean): GainInterval {
+export function gainInterval(
+	candidates: GainCandidate[],
+	stableAt: (k: number) => boolean
+): GainInterval {
 	const above = candidates.filter((c) => c.k > 1);
 	const below = candidates.filter((c) => c.k < 1).reverse();
 	let high: GainCandidate | null = null;

@@ -24,7 +24,13 @@ export const LIGHT_DAMPING = 0.3;
 const OFFSETS = [-6, -3, -1.5, -0.7, -0.3, 0, 0.3, 0.7, 1.5, 3, 6];
 
 /** The sorted grid with the feature points (and `extra` ones) merged in, duplicates dropped. */
-export function withFeatures(grid: number[], features: Feature[], lo: number, hi: number, extra: number[] = []): number[] {
+export function withFeatures(
+	grid: number[],
+	features: Feature[],
+	lo: number,
+	hi: number,
+	extra: number[] = []
+): number[] {
 	const add: number[] = [];
 	for (const { centre, decay } of features) {
 		if (!(centre > 0) || Math.abs(decay) >= LIGHT_DAMPING * Math.hypot(centre, decay)) continue;

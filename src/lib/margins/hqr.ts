@@ -55,39 +55,37 @@ export function balance(a: Float64Array, n: number): void {
 export function hqr(a: Float64Array, n: number, wr: Float64Array, wi: Float64Array): boolean {
 	const w = n + 1;
 	let anorm = 0;
-	for (let i = 1; i <= n; i++) for (let j = Math.max(i - 1, 1); j <= n; j++) anorm += Math.abs(a[(i) * w + j]);
+	for (let i = 1; i <= n; i++)
+		for (let j = Math.max(i - 1, 1); j <= n; j++) anorm += Math.abs(a[i * w + j]);
 	let nn = n;
 	let t = 0;
 	let p = 0;
 	let q = 0;
 	let r = 0;
-	/* eslint-disable no-useless-assignment -- declared once outside the QR sweep for speed; every
-	   path assigns them before use */
-	let x = 0;
-	let y = 0;
-	let z = 0;
-	let ww = 0;
-	/* eslint-enable no-useless-assignment */
+	let x: number;
+	let y: number;
+	let z: number;
+	let ww: number;
 	while (nn >= 1) {
 		let its = 0;
 		let l: number;
 		do {
 			for (l = nn; l >= 2; l--) {
-				let s = Math.abs(a[(l - 1) * w + l - 1]) + Math.abs(a[(l) * w + l]);
+				let s = Math.abs(a[(l - 1) * w + l - 1]) + Math.abs(a[l * w + l]);
 				if (s === 0) s = anorm;
-				if (Math.abs(a[(l) * w + l - 1]) + s === s) {
+				if (Math.abs(a[l * w + l - 1]) + s === s) {
 					a[l * w + l - 1] = 0;
 					break;
 				}
 			}
-			x = a[(nn) * w + nn];
+			x = a[nn * w + nn];
 			if (l === nn) {
 				wr[nn - 1] = x + t;
 				wi[nn - 1] = 0;
 				nn--;
 			} else {
 				y = a[(nn - 1) * w + nn - 1];
-				ww = a[(nn) * w + nn - 1] * a[(nn - 1) * w + nn];
+				ww = a[nn * w + nn - 1] * a[(nn - 1) * w + nn];
 				if (l === nn - 1) {
 					p = 0.5 * (y - x);
 					q = p * p + ww;
@@ -110,7 +108,7 @@ export function hqr(a: Float64Array, n: number, wr: Float64Array, wi: Float64Arr
 						// exceptional shift: breaks the symmetric stalls of cyclic (xⁿ − c) matrices
 						t += x;
 						for (let i = 1; i <= nn; i++) a[i * w + i] -= x;
-						const s = Math.abs(a[(nn) * w + nn - 1]) + Math.abs(a[(nn - 1) * w + nn - 2]);
+						const s = Math.abs(a[nn * w + nn - 1]) + Math.abs(a[(nn - 1) * w + nn - 2]);
 						y = x = 0.75 * s;
 						ww = -0.4375 * s * s;
 						if (its % 20 === 0) {
@@ -121,10 +119,10 @@ export function hqr(a: Float64Array, n: number, wr: Float64Array, wi: Float64Arr
 					++its;
 					let m: number;
 					for (m = nn - 2; m >= l; m--) {
-						z = a[(m) * w + m];
+						z = a[m * w + m];
 						r = x - z;
 						const s0 = y - z;
-						p = (r * s0 - ww) / a[(m + 1) * w + m] + a[(m) * w + m + 1];
+						p = (r * s0 - ww) / a[(m + 1) * w + m] + a[m * w + m + 1];
 						q = a[(m + 1) * w + m + 1] - z - r - s0;
 						r = a[(m + 2) * w + m + 1];
 						const s = Math.abs(p) + Math.abs(q) + Math.abs(r);
@@ -132,8 +130,10 @@ export function hqr(a: Float64Array, n: number, wr: Float64Array, wi: Float64Arr
 						q /= s;
 						r /= s;
 						if (m === l) break;
-						const u = Math.abs(a[(m) * w + m - 1]) * (Math.abs(q) + Math.abs(r));
-						const v = Math.abs(p) * (Math.abs(a[(m - 1) * w + m - 1]) + Math.abs(z) + Math.abs(a[(m + 1) * w + m + 1]));
+						const u = Math.abs(a[m * w + m - 1]) * (Math.abs(q) + Math.abs(r));
+						const v =
+							Math.abs(p) *
+							(Math.abs(a[(m - 1) * w + m - 1]) + Math.abs(z) + Math.abs(a[(m + 1) * w + m + 1]));
 						if (u + v === v) break;
 					}
 					for (let i = m + 2; i <= nn; i++) {
@@ -142,7 +142,7 @@ export function hqr(a: Float64Array, n: number, wr: Float64Array, wi: Float64Arr
 					}
 					for (let k = m; k <= nn - 1; k++) {
 						if (k !== m) {
-							p = a[(k) * w + k - 1];
+							p = a[k * w + k - 1];
 							q = a[(k + 1) * w + k - 1];
 							r = k !== nn - 1 ? a[(k + 2) * w + k - 1] : 0;
 							x = Math.abs(p) + Math.abs(q) + Math.abs(r);
@@ -156,7 +156,7 @@ export function hqr(a: Float64Array, n: number, wr: Float64Array, wi: Float64Arr
 						const s = p >= 0 ? norm : -norm;
 						if (s !== 0) {
 							if (k === m) {
-								if (l !== m) a[k * w + k - 1] = -a[(k) * w + k - 1];
+								if (l !== m) a[k * w + k - 1] = -a[k * w + k - 1];
 							} else a[k * w + k - 1] = -s * x;
 							p += s;
 							x = p / s;
@@ -165,7 +165,7 @@ export function hqr(a: Float64Array, n: number, wr: Float64Array, wi: Float64Arr
 							q /= p;
 							r /= p;
 							for (let j = k; j <= nn; j++) {
-								p = a[(k) * w + j] + q * a[(k + 1) * w + j];
+								p = a[k * w + j] + q * a[(k + 1) * w + j];
 								if (k !== nn - 1) {
 									p += r * a[(k + 2) * w + j];
 									a[(k + 2) * w + j] -= p * z;
@@ -175,9 +175,9 @@ export function hqr(a: Float64Array, n: number, wr: Float64Array, wi: Float64Arr
 							}
 							const mmin = nn < k + 3 ? nn : k + 3;
 							for (let i = l; i <= mmin; i++) {
-								p = x * a[(i) * w + k] + y * a[(i) * w + k + 1];
+								p = x * a[i * w + k] + y * a[i * w + k + 1];
 								if (k !== nn - 1) {
-									p += z * a[(i) * w + k + 2];
+									p += z * a[i * w + k + 2];
 									a[i * w + k + 2] -= p * r;
 								}
 								a[i * w + k + 1] -= p * q;

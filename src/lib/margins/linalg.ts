@@ -62,7 +62,8 @@ function components(m: Matrix): number[][] {
 				continue;
 			}
 			work.pop();
-			if (work.length) low[work[work.length - 1][0]] = Math.min(low[work[work.length - 1][0]], low[v]);
+			if (work.length)
+				low[work[work.length - 1][0]] = Math.min(low[work[work.length - 1][0]], low[v]);
 			if (low[v] === index[v]) {
 				const comp: number[] = [];
 				let w: number;
@@ -118,7 +119,8 @@ function blockEigenvalues(m: Matrix): { re: Float64Array; im: Float64Array } {
 	const h = numeric.toUpperHessenberg(m).H as Matrix;
 	const w = n + 1;
 	const a = new Float64Array(w * w);
-	for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) a[(i + 1) * w + j + 1] = i > j + 1 ? 0 : h[i][j];
+	for (let i = 0; i < n; i++)
+		for (let j = 0; j < n; j++) a[(i + 1) * w + j + 1] = i > j + 1 ? 0 : h[i][j];
 	balance(a, n);
 	if (!hqr(a, n, re, im)) throw new Error('eigenvalues did not converge');
 	return { re, im };
@@ -166,7 +168,10 @@ function solveColumns(a: Matrix, b: Matrix): Matrix {
 	const lu = numeric.LU(a);
 	const out: Matrix = Array.from({ length: n }, () => new Array<number>(n).fill(0));
 	for (let j = 0; j < n; j++) {
-		const col = numeric.LUsolve(lu, b.map((row) => row[j])) as number[];
+		const col = numeric.LUsolve(
+			lu,
+			b.map((row) => row[j])
+		) as number[];
 		for (let i = 0; i < n; i++) out[i][j] = col[i];
 	}
 	return out;

@@ -41,7 +41,8 @@ export type FactorCache = Map<Block, Factor>;
 export function blockFactor(block: RationalBlock, T: number | null, path: PathSegment[]): Factor {
 	const continuous = T === null || block.domain === 's';
 	const f = rationalFactor(block, !continuous);
-	if (T !== null && block.domain === 's' && block.discretize) return discretise(f, block.discretize, T, path);
+	if (T !== null && block.domain === 's' && block.discretize)
+		return discretise(f, block.discretize, T, path);
 	return f;
 }
 
@@ -74,7 +75,10 @@ export interface CaseSource {
 /** The cases of a model as written: the single case "nominal" when there are none. */
 export function caseSources(model: LoopModel): CaseSource[] {
 	const delay = model.delaySeconds ?? 0;
-	if (!model.cases) return [{ name: 'nominal', gain: 1, delaySeconds: delay, blocks: model.blocks, path: ['blocks'] }];
+	if (!model.cases)
+		return [
+			{ name: 'nominal', gain: 1, delaySeconds: delay, blocks: model.blocks, path: ['blocks'] }
+		];
 	return model.cases.map((c, i) => ({
 		name: c.name,
 		gain: c.gain ?? 1,
@@ -84,7 +88,12 @@ export function caseSources(model: LoopModel): CaseSource[] {
 	}));
 }
 
-export function buildCase(model: LoopModel, source: CaseSource, gainScale: number, cache?: FactorCache): CaseLoop {
+export function buildCase(
+	model: LoopModel,
+	source: CaseSource,
+	gainScale: number,
+	cache?: FactorCache
+): CaseLoop {
 	const T = model.sampleTimeSeconds ?? null;
 	const factors: Factor[] = [];
 	const measured: MeasuredData[] = [];
@@ -127,7 +136,20 @@ export function buildCase(model: LoopModel, source: CaseSource, gainScale: numbe
 		} else delaySamples = k;
 	}
 	const caseGain = source.gain * gainScale;
-	return { name: source.name, T, gain, caseGain, factors, num, den, delaySeconds, delaySamples, foldedDelay, measured, measuredUnstable };
+	return {
+		name: source.name,
+		T,
+		gain,
+		caseGain,
+		factors,
+		num,
+		den,
+		delaySeconds,
+		delaySamples,
+		foldedDelay,
+		measured,
+		measuredUnstable
+	};
 }
 
 export function buildCases(model: LoopModel, gainScale = 1): CaseLoop[] {

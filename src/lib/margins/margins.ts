@@ -17,7 +17,8 @@ export interface MarginOptions {
 
 export function gainScaleOf(options?: MarginOptions): number {
 	const k = options?.gainScale ?? 1;
-	if (!(k > 0) || !Number.isFinite(k)) throw new RangeError(`gainScale must be a finite number > 0, got ${k}`);
+	if (!(k > 0) || !Number.isFinite(k))
+		throw new RangeError(`gainScale must be a finite number > 0, got ${k}`);
 	return k;
 }
 
@@ -30,6 +31,8 @@ export function analyseCase(loop: CaseLoop): CaseAnalysis {
 }
 
 export function computeMargins(model: LoopModel, options?: MarginOptions): MarginsResult {
-	const cases = buildCases(model, gainScaleOf(options)).map((loop) => toCaseResult(analyseCase(loop)));
+	const cases = buildCases(model, gainScaleOf(options)).map((loop) =>
+		toCaseResult(analyseCase(loop))
+	);
 	return { format: MARGINS_FORMAT, engine: ENGINE_VERSION, cases, worstCase: worstCase(cases) };
 }

@@ -21,8 +21,7 @@ export interface PhaseCrossing extends Crossing {
 
 /** How the curve closes at one end of the band. */
 export type Closure =
-	| { kind: 'arc'; crossings: number }
-	| { kind: 'chord'; re: number; imSign: number; sign: 1 | -1 };
+	{ kind: 'arc'; crossings: number } | { kind: 'chord'; re: number; imSign: number; sign: 1 | -1 };
 
 export interface NyquistCount {
 	/** Open-loop poles strictly unstable (not on the boundary), plus hidden unstable modes. */

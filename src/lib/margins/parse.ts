@@ -11,7 +11,10 @@ import type { ModelIssue } from './types';
 
 export type ParseOutcome = { ok: true; model: LoopModel } | { ok: false; issue: ModelIssue };
 
-const refuse = (path: string, problem: string): ParseOutcome => ({ ok: false, issue: issue(path, problem) });
+const refuse = (path: string, problem: string): ParseOutcome => ({
+	ok: false,
+	issue: issue(path, problem)
+});
 
 /** UTF-8 length of a string, counting no further than `limit + 1`. */
 export function utf8Length(text: string, limit = Infinity): number {
@@ -20,7 +23,12 @@ export function utf8Length(text: string, limit = Infinity): number {
 		const c = text.charCodeAt(i);
 		if (c < 0x80) n += 1;
 		else if (c < 0x800) n += 2;
-		else if (c >= 0xd800 && c <= 0xdbff && i + 1 < text.length && (text.charCodeAt(i + 1) & 0xfc00) === 0xdc00) {
+		else if (
+			c >= 0xd800 &&
+			c <= 0xdbff &&
+			i + 1 < text.length &&
+			(text.charCodeAt(i + 1) & 0xfc00) === 0xdc00
+		) {
 			n += 4;
 			i++;
 		} else n += 3;
@@ -47,7 +55,14 @@ function nesting(text: string, limit: number): number {
 	return deepest;
 }
 
-const describe = (v: unknown) => (v === null ? 'null' : Array.isArray(v) ? 'an array' : typeof v === 'object' ? 'an object' : `a ${typeof v}`);
+const describe = (v: unknown) =>
+	v === null
+		? 'null'
+		: Array.isArray(v)
+			? 'an array'
+			: typeof v === 'object'
+				? 'an object'
+				: `a ${typeof v}`;
 
 interface ZodIssueLike {
 	code: string;
@@ -60,13 +75,23 @@ interface ZodIssueLike {
 
 function fromZod(iss: ZodIssueLike): ModelIssue {
 	if (iss.code === 'unrecognized_keys' && iss.keys?.length) {
-		const more = iss.keys.length > 1 ? ` (and ${iss.keys.slice(1).map((k) => JSON.stringify(k)).join(', ')})` : '';
+		const more =
+			iss.keys.length > 1
+				? ` (and ${iss.keys
+						.slice(1)
+						.map((k) => JSON.stringify(k))
+						.join(', ')})`
+				: '';
 		return issue([...iss.path, iss.keys[0]], `unknown field${more}: not part of ${MODEL_FORMAT}`);
 	}
 	let message = iss.message;
 	if (iss.code === 'invalid_type' && message.startsWith('Invalid input')) {
-		message = iss.input === undefined ? 'is required' : `must be ${iss.expected === 'array' ? 'an array' : `a ${iss.expected}`}, got ${describe(iss.input)}`;
-		if (iss.path.length === 0) message = `the file must hold a JSON object (a ${MODEL_FORMAT} model), got ${describe(iss.input)}`;
+		message =
+			iss.input === undefined
+				? 'is required'
+				: `must be ${iss.expected === 'array' ? 'an array' : `a ${iss.expected}`}, got ${describe(iss.input)}`;
+		if (iss.path.length === 0)
+			message = `the file must hold a JSON object (a ${MODEL_FORMAT} model), got ${describe(iss.input)}`;
 	}
 	return issue(formatPath(iss.path), message);
 }
@@ -81,17 +106,21 @@ export function parseModelText(text: string, fileName?: string): ParseOutcome {
 	try {
 		if (typeof text !== 'string') return refuse('', 'the file is not text');
 		const bytes = utf8Length(text, MAX_MODEL_BYTES);
-		if (bytes > MAX_MODEL_BYTES) return refuse('', `the file is over the size limit of ${MAX_MODEL_BYTES} bytes (5 MiB)`);
+		if (bytes > MAX_MODEL_BYTES)
+			return refuse('', `the file is over the size limit of ${MAX_MODEL_BYTES} bytes (5 MiB)`);
 		const body = text.charCodeAt(0) === 0xfeff ? text.slice(1) : text;
 		const start = body.trimStart();
 		const firstLine = start.split(/\r\n|\n|\r/, 1)[0] ?? '';
-		const csv = !(start.startsWith('{') || start.startsWith('[')) && (looksLikeCsv(firstLine) || /\.csv$/i.test(fileName ?? ''));
+		const csv =
+			!(start.startsWith('{') || start.startsWith('[')) &&
+			(looksLikeCsv(firstLine) || /\.csv$/i.test(fileName ?? ''));
 		if (csv) {
 			const fromCsv = csvToModel(body);
 			return fromCsv.ok ? validate(fromCsv.data) : fromCsv;
 		}
 		if (start === '') return refuse('', 'the file is empty: not JSON');
-		if (nesting(body, MAX_NESTING) > MAX_NESTING) return refuse('', `not a model: JSON nested deeper than ${MAX_NESTING} levels`);
+		if (nesting(body, MAX_NESTING) > MAX_NESTING)
+			return refuse('', `not a model: JSON nested deeper than ${MAX_NESTING} levels`);
 		let data: unknown;
 		try {
 			data = JSON.parse(body);

@@ -37,8 +37,12 @@ export class ContinuousEval implements LoopEval {
 	numRelative = 1;
 
 	constructor(num: Poly, den: Poly, gain: number) {
-		const centres = [rootCentre(num), rootCentre(den)].filter((c): c is number => c !== null && c > 0);
-		this.w0 = centres.length ? powerOfTwo(centres.reduce((p, c) => p * c, 1) ** (1 / centres.length)) : 1;
+		const centres = [rootCentre(num), rootCentre(den)].filter(
+			(c): c is number => c !== null && c > 0
+		);
+		this.w0 = centres.length
+			? powerOfTwo(centres.reduce((p, c) => p * c, 1) ** (1 / centres.length))
+			: 1;
 		const n = scaleArgument(num, this.w0);
 		const d = scaleArgument(den, this.w0);
 		const sn = powerOfTwo(maxAbs(n));
@@ -116,7 +120,11 @@ export class ContinuousEval implements LoopEval {
 	}
 }
 
-function hornerWithDerivative(p: Float64Array, xr: number, xi: number): [number, number, number, number] {
+function hornerWithDerivative(
+	p: Float64Array,
+	xr: number,
+	xi: number
+): [number, number, number, number] {
 	let pr = 0;
 	let pi = 0;
 	let dr = 0;

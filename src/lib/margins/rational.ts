@@ -3,7 +3,14 @@
  * from the closed-loop poles, and a lean grid for the modulus and disk margins only.
  */
 import { brentRoot } from './brent';
-import { continuousCrossings, dedupe, ON_POLE, sampledCrossings, type Crossing, type RationalCrossings } from './crossovers';
+import {
+	continuousCrossings,
+	dedupe,
+	ON_POLE,
+	sampledCrossings,
+	type Crossing,
+	type RationalCrossings
+} from './crossovers';
 import type { CaseAnalysis } from './figures';
 import { gainCandidates, gainInterval, type GainCandidate } from './gain-margins';
 import { band, logGrid, withFeatures, type Feature } from './grid';
@@ -45,7 +52,12 @@ export function rationalAnalysis(loop: CaseLoop): CaseAnalysis {
 		count = (k) => schurUnstable(add(w.den, scale(w.num, k * w.gain)));
 	}
 	const cl = closed(1);
-	const grid = sensitivityGrid(ev, cl.poles, cross, loop.T === null ? (ev as ContinuousEval).w0 : 1);
+	const grid = sensitivityGrid(
+		ev,
+		cl.poles,
+		cross,
+		loop.T === null ? (ev as ContinuousEval).w0 : 1
+	);
 	const values = evaluate(ev, grid);
 	safetyNet(ev, grid, values, cross);
 	const ends: EndPoint[] = [];
@@ -55,7 +67,8 @@ export function rationalAnalysis(loop: CaseLoop): CaseAnalysis {
 	const sens = sensitivity(ev, grid, ends, values);
 	const extra: GainCandidate[] = lInf < 0 ? [{ k: -1 / lInf, f: Infinity }] : [];
 	const stableAt = (k: number) => (count(k) ?? closed(k).unstable) === 0;
-	const interval = cl.unstable === 0 ? gainInterval(gainCandidates(cross.phase, extra), stableAt) : null;
+	const interval =
+		cl.unstable === 0 ? gainInterval(gainCandidates(cross.phase, extra), stableAt) : null;
 	return {
 		name: loop.name,
 		T: loop.T,
@@ -72,7 +85,12 @@ export function rationalAnalysis(loop: CaseLoop): CaseAnalysis {
  * The band reaches well past the closed-loop poles and crossovers; narrow features of |1 + L| sit
  * at lightly damped closed-loop poles, so those get points of their own.
  */
-function sensitivityGrid(ev: LoopEval, poles: [number, number][], cross: RationalCrossings, w0: number) {
+function sensitivityGrid(
+	ev: LoopEval,
+	poles: [number, number][],
+	cross: RationalCrossings,
+	w0: number
+) {
 	const features: Feature[] = [];
 	const freqs: number[] = [];
 	for (const [a, b] of poles) {
@@ -111,7 +129,12 @@ function evaluate(ev: LoopEval, grid: number[]): GridValues {
  * The algebra is exact, but a grid costs little: a sign change of ln|L| or of Im L (with Re L < 0)
  * between two grid points that no crossover explains is refined by Brent and added.
  */
-function safetyNet(ev: LoopEval, grid: number[], { re, im }: GridValues, cross: RationalCrossings): void {
+function safetyNet(
+	ev: LoopEval,
+	grid: number[],
+	{ re, im }: GridValues,
+	cross: RationalCrossings
+): void {
 	const n = grid.length;
 	// the sign of |L|² − 1 is all a bracket needs; logarithms only inside Brent
 	const lm = new Float64Array(n);
@@ -122,27 +145,41 @@ function safetyNet(ev: LoopEval, grid: number[], { re, im }: GridValues, cross: 
 		ev.at(Math.PI / 2);
 		deep = 1e-12 * Math.hypot(ev.re, ev.im);
 	}
-	const inside = (list: Crossing[], a: number, b: number) => list.filter((c) => c.f > a && c.f <= b).length;
+	const inside = (list: Crossing[], a: number, b: number) =>
+		list.filter((c) => c.f > a && c.f <= b).length;
 	const added: { gain: Crossing[]; phase: Crossing[] } = { gain: [], phase: [] };
 	for (let i = 0; i + 1 < n; i++) {
 		const [a, b] = [grid[i], grid[i + 1]];
 		if (lm[i] * lm[i + 1] < 0 && inside(cross.gain, a, b) % 2 === 0) {
-			const u = brentRoot((x) => {
-				ev.at(Math.exp(x));
-				return Math.log(Math.hypot(ev.re, ev.im));
-			}, Math.log(a), Math.log(b));
+			const u = brentRoot(
+				(x) => {
+					ev.at(Math.exp(x));
+					return Math.log(Math.hypot(ev.re, ev.im));
+				},
+				Math.log(a),
+				Math.log(b)
+			);
 			ev.at(Math.exp(u));
 			added.gain.push({ f: Math.exp(u), re: ev.re, im: ev.im });
 		}
 		if (im[i] * im[i + 1] < 0) {
 			const t = im[i] / (im[i] - im[i + 1]);
 			if (re[i] + t * (re[i + 1] - re[i]) >= 0 || inside(cross.phase, a, b) % 2 === 1) continue;
-			const u = brentRoot((x) => {
-				ev.at(Math.exp(x));
-				return ev.im / Math.hypot(ev.re, ev.im);
-			}, Math.log(a), Math.log(b));
+			const u = brentRoot(
+				(x) => {
+					ev.at(Math.exp(x));
+					return ev.im / Math.hypot(ev.re, ev.im);
+				},
+				Math.log(a),
+				Math.log(b)
+			);
 			ev.at(Math.exp(u));
-			if (ev.re < 0 && ev.denRelative > ON_POLE && ev.numRelative > ON_POLE && Math.hypot(ev.re, ev.im) > deep)
+			if (
+				ev.re < 0 &&
+				ev.denRelative > ON_POLE &&
+				ev.numRelative > ON_POLE &&
+				Math.hypot(ev.re, ev.im) > deep
+			)
 				added.phase.push({ f: Math.exp(u), re: ev.re, im: ev.im });
 		}
 	}

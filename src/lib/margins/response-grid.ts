@@ -37,16 +37,27 @@ export function classifyRoots(resp: LoopResponse): RootClasses {
 	const sampled = resp.sampled;
 	const zeros = listOf(resp.zeros);
 	const poles = listOf(resp.poles);
-	const out: RootClasses = { unstable: 0, hidden: 0, low: 0, high: 0, interior: [], features: [], freqs: [] };
+	const out: RootClasses = {
+		unstable: 0,
+		hidden: 0,
+		low: 0,
+		high: 0,
+		interior: [],
+		features: [],
+		freqs: []
+	};
 	// distance from the boundary, signed: > 0 unstable side
 	const side = ([a, b]: number[]) => (sampled ? Math.hypot(a, b) - 1 : a / (Math.hypot(a, b) || 1));
-	const onBoundary = (r: number[]) => (!sampled && r[0] === 0 && r[1] === 0) || Math.abs(side(r)) <= ON_BOUNDARY;
+	const onBoundary = (r: number[]) =>
+		(!sampled && r[0] === 0 && r[1] === 0) || Math.abs(side(r)) <= ON_BOUNDARY;
 	const usedZero = new Uint8Array(zeros.length);
 	const freePoles: number[][] = [];
 	for (const p of poles) {
 		// loose: a cancellation carried through a discretisation is only approximately exact
 		const tol = 1e-6 * Math.max(Math.hypot(p[0], p[1]), sampled ? 1 : 1e-300);
-		const j = zeros.findIndex((z, i) => !usedZero[i] && Math.hypot(z[0] - p[0], z[1] - p[1]) <= tol);
+		const j = zeros.findIndex(
+			(z, i) => !usedZero[i] && Math.hypot(z[0] - p[0], z[1] - p[1]) <= tol
+		);
 		if (j >= 0) {
 			usedZero[j] = 1;
 			if (onBoundary(p) || side(p) > 0) out.hidden++;
@@ -64,7 +75,10 @@ export function classifyRoots(resp: LoopResponse): RootClasses {
 			locations.set(key, (locations.get(key) ?? 0) + m);
 		}
 	};
-	for (const [list, m] of [[freePoles, 1], [freeZeros, -1]] as const)
+	for (const [list, m] of [
+		[freePoles, 1],
+		[freeZeros, -1]
+	] as const)
 		for (const r of list) {
 			if (onBoundary(r)) {
 				mark(r, m);
@@ -72,7 +86,9 @@ export function classifyRoots(resp: LoopResponse): RootClasses {
 			}
 			if (m === 1 && side(r) > 0) out.unstable++;
 			if (r[1] < 0) continue;
-			const [centre, decay] = sampled ? [Math.abs(Math.atan2(r[1], r[0])), Math.log(Math.hypot(r[0], r[1]))] : [r[1], r[0]];
+			const [centre, decay] = sampled
+				? [Math.abs(Math.atan2(r[1], r[0])), Math.log(Math.hypot(r[0], r[1]))]
+				: [r[1], r[0]];
 			const size = Math.hypot(centre, decay);
 			if (Number.isFinite(size) && size > 0) {
 				out.features.push({ centre, decay });
@@ -84,7 +100,8 @@ export function classifyRoots(resp: LoopResponse): RootClasses {
 	return out;
 }
 
-const listOf = (r: { re: Float64Array; im: Float64Array }) => Array.from(r.re, (x, i) => [x, r.im[i]]);
+const listOf = (r: { re: Float64Array; im: Float64Array }) =>
+	Array.from(r.re, (x, i) => [x, r.im[i]]);
 
 function sample(resp: LoopResponse, f: number, jump?: boolean): Sample {
 	resp.at(f);
@@ -126,7 +143,8 @@ export function buildGrid(loop: CaseLoop, resp: LoopResponse, roots: RootClasses
 	}
 	const lo = base[0];
 	const hi = base[base.length - 1];
-	const points = measured && loop.factors.length === 0 ? base : withFeatures(base, roots.features, lo, hi);
+	const points =
+		measured && loop.factors.length === 0 ? base : withFeatures(base, roots.features, lo, hi);
 	let samples = points.map((f) => sample(resp, f));
 	let interiorArcs = 0;
 	for (const { f, m } of roots.interior) {
@@ -148,7 +166,13 @@ export function buildGrid(loop: CaseLoop, resp: LoopResponse, roots: RootClasses
  * of winding on (the grid's point budget bounds the work for very long delays). `reach` > 1
  * pushes the limit out, for a loop whose gain margin lies beyond it.
  */
-function continuousTop(resp: LoopResponse, lo: number, hi: number, reach: number, caseGain: number): number {
+function continuousTop(
+	resp: LoopResponse,
+	lo: number,
+	hi: number,
+	reach: number,
+	caseGain: number
+): number {
 	// the features' band may end while |L| is still above the floor (a slow roll-off): look beyond.
 	// The floor applies to the blocks without the case's gain, so that scaling a loop moves its
 	// gain margins, never the list of phase crossovers.
@@ -208,7 +232,12 @@ const signOf = (s: Sample, neighbour: Sample | undefined) => {
 };
 
 /** How the curve closes onto its mirror image at each end of the band. */
-export function closures(loop: CaseLoop, resp: LoopResponse, roots: RootClasses, samples: Sample[]): { low: Closure; high: Closure } {
+export function closures(
+	loop: CaseLoop,
+	resp: LoopResponse,
+	roots: RootClasses,
+	samples: Sample[]
+): { low: Closure; high: Closure } {
 	const first = samples[0];
 	const last = samples[samples.length - 1];
 	// measured data do not say how many integrators lie below the band: the slope does

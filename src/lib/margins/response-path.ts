@@ -4,7 +4,15 @@
  * of a delayed rational loop stay exact (the delay has |·| = 1).
  */
 import { brentRoot } from './brent';
-import { continuousCrossings, dedupe, ON_POLE, sampledCrossings, vanishesAtMinusOne, type Crossing, type SampledLoopForms } from './crossovers';
+import {
+	continuousCrossings,
+	dedupe,
+	ON_POLE,
+	sampledCrossings,
+	vanishesAtMinusOne,
+	type Crossing,
+	type SampledLoopForms
+} from './crossovers';
 import { loopForms } from './sampled-forms';
 import type { Poly } from './polynomial';
 import type { CaseAnalysis } from './figures';
@@ -42,7 +50,17 @@ export function responseAnalysis(loop: CaseLoop): CaseAnalysis {
 	const stable = z === 0;
 	let interval = stable ? walk(count, phase) : null;
 	// a delayed strictly proper loop always has a finite upper gain margin: look further out for it
-	for (let reach = 100; interval && !interval.high && count.neutral === 0 && !measured && !resp.sampled && resp.delay > 0 && reach <= 1e6; reach *= 100) {
+	for (
+		let reach = 100;
+		interval &&
+		!interval.high &&
+		count.neutral === 0 &&
+		!measured &&
+		!resp.sampled &&
+		resp.delay > 0 &&
+		reach <= 1e6;
+		reach *= 100
+	) {
 		grid = buildGrid(loop, resp, roots, reach);
 		phase = phaseCrossings(resp, grid.samples, rational, numW);
 		count = nyquistCount(loop, resp, roots, grid, phase, rational);
@@ -53,10 +71,17 @@ export function responseAnalysis(loop: CaseLoop): CaseAnalysis {
 	if (rational) {
 		const l0 = rational.atZero();
 		if (Number.isFinite(l0)) ends.push({ f: 0, re: l0, im: 0 });
-		if (rational instanceof ContinuousEval) ends.push({ f: Infinity, re: -Math.abs(rational.atInfinity()), im: 0 });
+		if (rational instanceof ContinuousEval)
+			ends.push({ f: Infinity, re: -Math.abs(rational.atInfinity()), im: 0 });
 	}
 	// |1 + L| dips where L passes −1, between a gain crossover and a phase crossing: both on the grid
-	const freqs = withFeatures(grid.samples.map((s) => s.f), [], 0, Infinity, [...gain, ...phase].map((c) => c.f).filter((f) => f > 0 && Number.isFinite(f)));
+	const freqs = withFeatures(
+		grid.samples.map((s) => s.f),
+		[],
+		0,
+		Infinity,
+		[...gain, ...phase].map((c) => c.f).filter((f) => f > 0 && Number.isFinite(f))
+	);
 	return {
 		name: loop.name,
 		T: loop.T,
@@ -69,13 +94,20 @@ export function responseAnalysis(loop: CaseLoop): CaseAnalysis {
 	};
 }
 
-function phaseCrossings(resp: LoopResponse, samples: Sample[], rational: LoopEval | null, numW: Poly): PhaseCrossing[] {
+function phaseCrossings(
+	resp: LoopResponse,
+	samples: Sample[],
+	rational: LoopEval | null,
+	numW: Poly
+): PhaseCrossing[] {
 	let deep = 0;
 	if (resp.sampled) {
 		resp.at(Math.PI / 2);
 		deep = 1e-12 * Math.hypot(resp.re, resp.im);
 	}
-	const phase = bracketPhase(resp, samples).filter((c) => resp.zeroDistance(c.f) > ON_POLE && Math.hypot(c.re, c.im) > deep);
+	const phase = bracketPhase(resp, samples).filter(
+		(c) => resp.zeroDistance(c.f) > ON_POLE && Math.hypot(c.re, c.im) > deep
+	);
 	if (rational) addEnds(resp, rational, numW, phase);
 	return phase;
 }
@@ -93,7 +125,8 @@ function nyquistCount(
 		crossings: phase,
 		interiorArcs: grid.interiorArcs,
 		...closures(loop, resp, roots, grid.samples),
-		neutral: rational instanceof ContinuousEval && resp.delay > 0 ? Math.abs(rational.atInfinity()) : 0
+		neutral:
+			rational instanceof ContinuousEval && resp.delay > 0 ? Math.abs(rational.atInfinity()) : 0
 	};
 }
 
@@ -117,10 +150,16 @@ function bracketGain(resp: LoopResponse, samples: Sample[]): Crossing[] {
 			continue;
 		}
 		if (a.lnMag * b.lnMag >= 0) continue;
-		const u = brentRoot((x) => {
-			resp.at(Math.exp(x));
-			return resp.lnMag;
-		}, Math.log(a.f), Math.log(b.f), a.lnMag, b.lnMag);
+		const u = brentRoot(
+			(x) => {
+				resp.at(Math.exp(x));
+				return resp.lnMag;
+			},
+			Math.log(a.f),
+			Math.log(b.f),
+			a.lnMag,
+			b.lnMag
+		);
 		out.push(withFull(resp, Math.exp(u)));
 	}
 	const last = samples[samples.length - 1];
@@ -143,10 +182,16 @@ function bracketPhase(resp: LoopResponse, samples: Sample[]): PhaseCrossing[] {
 		// one root per odd multiple of π passed (the grid keeps this to one almost always)
 		for (let j = Math.min(ia, ib) + 1; j <= Math.max(ia, ib); j++) {
 			const line = Math.PI + 2 * Math.PI * j;
-			const u = brentRoot((x) => {
-				resp.at(Math.exp(x));
-				return resp.phase - line;
-			}, Math.log(a.f), Math.log(b.f), a.phase - line, b.phase - line);
+			const u = brentRoot(
+				(x) => {
+					resp.at(Math.exp(x));
+					return resp.phase - line;
+				},
+				Math.log(a.f),
+				Math.log(b.f),
+				a.phase - line,
+				b.phase - line
+			);
 			const c = withFull(resp, Math.exp(u));
 			out.push({ ...c, dir });
 		}
@@ -164,6 +209,7 @@ function addEnds(resp: LoopResponse, rational: LoopEval, numW: Poly, phase: Phas
 		rational.at(Math.PI);
 		const sign = resp.delay % 2 === 0 ? 1 : -1;
 		const l = rational.re * sign;
-		if (l < 0 && rational.denRelative > 1e-10 && !vanishesAtMinusOne(numW)) phase.push({ f: Math.PI, re: l, im: 0, dir: 0, end: true });
+		if (l < 0 && rational.denRelative > 1e-10 && !vanishesAtMinusOne(numW))
+			phase.push({ f: Math.PI, re: l, im: 0, dir: 0, end: true });
 	}
 }

@@ -22,7 +22,9 @@ interface Interp {
 export function loopRoots(loop: CaseLoop): { zeros: Roots; poles: Roots } {
 	const find = loop.T === null ? polyRoots : zRoots;
 	// sampled factors with exact coefficients in w = z − 1 give their roots from those
-	const zerosOf = (f: Factor) => f.zeros ?? (f.numW ? wRoots(f.numW, true) : loop.T === null ? polyRoots(f.num) : zRoots(f.num, true));
+	const zerosOf = (f: Factor) =>
+		f.zeros ??
+		(f.numW ? wRoots(f.numW, true) : loop.T === null ? polyRoots(f.num) : zRoots(f.num, true));
 	const polesOf = (f: Factor) => f.poles ?? (f.denW ? wRoots(f.denW) : find(f.den));
 	const collect = (pick: (i: number) => Roots): Roots => {
 		const parts = loop.factors.map((_, i) => pick(i));
@@ -135,7 +137,13 @@ function continuousFactors(out: LoopResponse, roots: Roots, sign: number, f: num
 }
 
 /** The same for e^{jθ} − r, written so that roots near z = 1 lose nothing to cancellation. */
-function sampledFactors(out: LoopResponse, roots: Roots, off: Float64Array, sign: number, f: number): void {
+function sampledFactors(
+	out: LoopResponse,
+	roots: Roots,
+	off: Float64Array,
+	sign: number,
+	f: number
+): void {
 	const s = Math.sin(0.5 * f);
 	// 1 − e^{−jθ} = 2 sin²(θ/2) + j sin θ; at the Nyquist frequency z = −1 exactly (sin π ≠ 0 in floating point)
 	const er = 2 * s * s;

@@ -59,14 +59,19 @@ export function zRoots(p: Poly, zeros = false): Roots {
  * relative to). `zeros`: a numerator's zeros at z = −1 that rounding split into a cluster (a
  * Tustin map's, written out) are put back exactly, so that L is 0 at the Nyquist frequency.
  */
-export function wRoots(a: Poly, zeros = false, size = a.reduce((s, x) => s + Math.abs(x), 0)): Roots {
+export function wRoots(
+	a: Poly,
+	zeros = false,
+	size = a.reduce((s, x) => s + Math.abs(x), 0)
+): Roots {
 	const atOne = a[0] === 0 || Math.abs(a[0]) > 8 * Number.EPSILON * size ? 0 : 1;
 	let rest = trim(a);
 	let minusOnes = 0;
 	if (zeros) {
 		const v = shiftTo(rest, -2);
 		const scale = v.reduce((s, x) => s + Math.abs(x), 0);
-		while (minusOnes < v.length - 1 && Math.abs(v[minusOnes]) <= 64 * Number.EPSILON * scale) minusOnes++;
+		while (minusOnes < v.length - 1 && Math.abs(v[minusOnes]) <= 64 * Number.EPSILON * scale)
+			minusOnes++;
 		for (let k = 0; k < minusOnes; k++) rest = deflate(rest, -2);
 	}
 	const w = polyRoots(rest);
@@ -130,7 +135,8 @@ function companionRoots(q: Poly): Roots {
 		// hqr overwrote the matrix: rebuild it for the second opinion
 		const fresh = companion(q, n);
 		const m: number[][] = [];
-		for (let i = 1; i <= n; i++) m.push(Array.from(fresh.subarray(i * (n + 1) + 1, (i + 1) * (n + 1))));
+		for (let i = 1; i <= n; i++)
+			m.push(Array.from(fresh.subarray(i * (n + 1) + 1, (i + 1) * (n + 1))));
 		const { lambda } = numeric.eig(m);
 		const x = lambda.x as number[];
 		const y = (lambda.y as number[] | undefined) ?? [];

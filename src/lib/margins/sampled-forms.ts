@@ -14,7 +14,11 @@ import type { SampledLoopForms } from './crossovers';
 /** The z-, w- and delay-free w-forms the sampled crossover search takes. */
 export function loopForms(loop: CaseLoop): SampledLoopForms {
 	const w = sampledForms(loop);
-	return { z: { num: loop.num, den: loop.den, gain: loop.gain }, w, undelayed: loop.foldedDelay > 0 ? sampledForms(loop, true) : w };
+	return {
+		z: { num: loop.num, den: loop.den, gain: loop.gain },
+		w,
+		undelayed: loop.foldedDelay > 0 ? sampledForms(loop, true) : w
+	};
 }
 
 export interface SampledForms {

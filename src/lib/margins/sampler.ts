@@ -30,7 +30,10 @@ export interface CaseResponse {
 const DB = 20 / Math.LN10;
 const DEG = 180 / Math.PI;
 
-export function sampleResponse(model: LoopModel, options?: { gainScale?: number; points?: number }): CaseResponse[] {
+export function sampleResponse(
+	model: LoopModel,
+	options?: { gainScale?: number; points?: number }
+): CaseResponse[] {
 	const count = Math.max(16, Math.min(20_000, Math.round(options?.points ?? 300)));
 	const scale = gainScaleOf(options);
 	const nominal = buildCases(model, 1);
@@ -67,7 +70,9 @@ function sampleCase(loop: CaseLoop, nominal: CaseLoop, count: number): CaseRespo
 	const base = logGrid(lo, hi, count / decades);
 	// a boundary root is stepped over, not evaluated on
 	const avoid = roots.interior.map((r) => r.f);
-	const grid = withFeatures(base, roots.features, lo, hi, crossings).filter((f) => avoid.every((a) => Math.abs(f - a) > 1e-7 * a));
+	const grid = withFeatures(base, roots.features, lo, hi, crossings).filter((f) =>
+		avoid.every((a) => Math.abs(f - a) > 1e-7 * a)
+	);
 	const points = grid.map((f) => {
 		resp.at(f);
 		return {

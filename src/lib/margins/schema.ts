@@ -40,13 +40,17 @@ const roots = z.array(root).max(MAX_ROOTS, { error: `has more than ${MAX_ROOTS} 
 
 const matrix = (what: string) =>
 	z
-		.array(z.array(finite).max(MAX_STATES, { error: `row is longer than the state limit ${MAX_STATES}` }))
+		.array(
+			z.array(finite).max(MAX_STATES, { error: `row is longer than the state limit ${MAX_STATES}` })
+		)
 		.max(MAX_STATES, { error: `has more rows than the state limit ${MAX_STATES}` })
 		.describe(what);
 
 const discretisation = {
 	domain: z.enum(['s', 'z'], { error: 'domain must be "s" or "z"' }).optional(),
-	discretize: z.enum(['zoh', 'tustin'], { error: 'discretize must be "zoh" or "tustin"' }).optional()
+	discretize: z
+		.enum(['zoh', 'tustin'], { error: 'discretize must be "zoh" or "tustin"' })
+		.optional()
 };
 
 const polynomialBlock = z.strictObject({
@@ -120,17 +124,21 @@ export const blockSchema = z.discriminatedUnion(
 );
 
 const blocks = z
-	.array(blockSchema, { error: (iss) => (iss.input === undefined ? 'is required' : 'must be an array of blocks') })
+	.array(blockSchema, {
+		error: (iss) => (iss.input === undefined ? 'is required' : 'must be an array of blocks')
+	})
 	.min(1, { error: 'no blocks: a loop needs at least one block' })
 	.max(MAX_BLOCKS, { error: `has more than ${MAX_BLOCKS} blocks` });
 
-const positive = (what: string) =>
-	finite.refine((x) => x > 0, { error: `${what} must be > 0` });
+const positive = (what: string) => finite.refine((x) => x > 0, { error: `${what} must be > 0` });
 const nonNegative = (what: string) =>
 	finite.refine((x) => x >= 0, { error: `${what} must be ≥ 0 (a delay cannot be negative)` });
 
 const caseSchema = z.strictObject({
-	name: z.string({ error: 'a case needs a name' }).min(1, { error: 'a case name cannot be empty' }).max(200),
+	name: z
+		.string({ error: 'a case needs a name' })
+		.min(1, { error: 'a case name cannot be empty' })
+		.max(200),
 	gain: positive('gain').optional(),
 	delaySeconds: nonNegative('delaySeconds').optional(),
 	blocks: blocks.optional()

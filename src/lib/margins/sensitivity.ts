@@ -4,7 +4,7 @@
  * caller's: it must already be dense where these functions have narrow features (near lightly
  * damped closed-loop poles).
  */
-import { brentMin } from './brent';
+import { brentMin, parabolicMin } from './brent';
 
 export interface PointEval {
 	at(f: number): void;
@@ -72,22 +72,41 @@ export function sensitivity(
 		if (m < bestMod) [bestMod, bestModF] = [m, e.f];
 		if (h > bestHalf) [bestHalf, bestHalfF] = [h, e.f];
 	}
-	const polish = (vals: Float64Array, sign: number, of: (re: number, im: number) => number): [number, number] => {
+	const polish = (
+		vals: Float64Array,
+		sign: number,
+		of: (re: number, im: number) => number
+	): [number, number] => {
 		let best = Infinity;
 		let bestF = NaN;
 		const found = extrema(vals, sign, refine);
-		const limit = found.length ? sign * vals[found[0]] * (sign > 0 ? within * within : 1 / (within * within)) : 0;
+		const limit = found.length
+			? sign * vals[found[0]] * (sign > 0 ? within * within : 1 / (within * within))
+			: 0;
 		for (const i of found) {
 			if (i !== found[0] && sign * vals[i] > limit) continue;
 			if (sign * vals[i] < best) [best, bestF] = [sign * vals[i], grid[i]];
 			const a = Math.log(grid[Math.max(0, i - 1)]);
 			const b = Math.log(grid[Math.min(n - 1, i + 1)]);
 			if (!(b > a)) continue;
-			const [u, v] = brentMin((x) => {
+			const f = (x: number): number => {
 				ev.at(Math.exp(x));
 				const y = sign * of(ev.re, ev.im);
 				return Number.isNaN(y) ? Infinity : y;
-			}, a, b, 1e-10);
+			};
+			// an interior grid minimum already brackets; only band ends need a blind search
+			const [u, v] =
+				i > 0 && i < n - 1
+					? parabolicMin(
+							f,
+							a,
+							sign * vals[i - 1],
+							Math.log(grid[i]),
+							sign * vals[i],
+							b,
+							sign * vals[i + 1]
+						)
+					: brentMin(f, a, b, 1e-10);
 			if (v < best) [best, bestF] = [v, Math.exp(u)];
 		}
 		return [sign * best, bestF];
@@ -96,7 +115,12 @@ export function sensitivity(
 	if (m < bestMod) [bestMod, bestModF] = [m, mf];
 	const [h, hf] = polish(half, -1, halfOf);
 	if (h > bestHalf) [bestHalf, bestHalfF] = [h, hf];
-	return { modulus: Math.sqrt(bestMod), modulusF: bestModF, half: Math.sqrt(bestHalf), halfF: bestHalfF };
+	return {
+		modulus: Math.sqrt(bestMod),
+		modulusF: bestModF,
+		half: Math.sqrt(bestHalf),
+		halfF: bestHalfF
+	};
 }
 
 /** Indices of the `count` smallest local minima of sign·values (band ends included). */

@@ -71,7 +71,8 @@ function squaredMagnitude(a: Poly, sums: { p: Poly[] }, size: number): number[] 
 	for (let i = 0; i < a.length; i++) {
 		if (a[i] === 0) continue;
 		out[i] += a[i] * a[i];
-		for (let k = i + 1; k < a.length; k++) if (a[k] !== 0) accumulate(out, sums.p[k - i], a[i] * a[k], i);
+		for (let k = i + 1; k < a.length; k++)
+			if (a[k] !== 0) accumulate(out, sums.p[k - i], a[i] * a[k], i);
 	}
 	return out;
 }
@@ -112,18 +113,15 @@ export function thetaFromU(u: number, c: 1 | -1): number {
  */
 export function bilinearFromShifted(a: Poly): Poly {
 	const n = a.length - 1;
-	let out = new Array<number>(n + 1).fill(0);
-	// eslint-disable-next-line no-useless-assignment -- reassigned in the loop before its first use
-	let oneMinus: Poly = [1];
+	const out = new Array<number>(n + 1).fill(0);
 	const powers: Poly[] = [[1]];
 	for (let i = 1; i <= n; i++) powers.push(polyMul(powers[i - 1], [1, -1]));
 	for (let i = 0; i <= n; i++) {
 		if (a[i] === 0) continue;
-		oneMinus = powers[n - i];
 		// a_i (2s)^i (1 − s)^(n−i)
 		const f = a[i] * 2 ** i;
+		const oneMinus = powers[n - i];
 		for (let j = 0; j < oneMinus.length; j++) out[i + j] += f * oneMinus[j];
 	}
-	out = trim(out);
-	return out;
+	return trim(out);
 }

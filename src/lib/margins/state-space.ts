@@ -23,7 +23,10 @@ export function stateSpaceFactor(block: StateSpaceBlock, sampled = false): Facto
 	const c = block.c[0];
 	const d = block.d ? block.d[0][0] : 0;
 	const n = a.length;
-	const rho = Math.max(...a.map((row) => row.reduce((s, x) => s + Math.abs(x), 0)), Number.MIN_VALUE);
+	const rho = Math.max(
+		...a.map((row) => row.reduce((s, x) => s + Math.abs(x), 0)),
+		Number.MIN_VALUE
+	);
 	const poles = snapIntegrators(pairUp(eigenvalues(a)), rho);
 	const den = fromRoots(poles.re, poles.im);
 	const h = (xr: number, xi: number) => transfer(a, b, c, xr, xi);
@@ -35,7 +38,15 @@ export function stateSpaceFactor(block: StateSpaceBlock, sampled = false): Facto
 	const offsets: Roots = { ...poles, offRe: Float64Array.from(poles.re, (x) => 1 - x) };
 	const m = a.map((row, i) => row.map((x, j) => x - (i === j ? 1 : 0)));
 	const { numW, zeros } = sampledNumerator({ m, g: b, c, d, poles: offsets });
-	return { num: fromRoots(zeros.re, zeros.im, numW[numW.length - 1]), den, zeros, poles: offsets, numW, denW: fromOffsets(offsets), realisation };
+	return {
+		num: fromRoots(zeros.re, zeros.im, numW[numW.length - 1]),
+		den,
+		zeros,
+		poles: offsets,
+		numW,
+		denW: fromOffsets(offsets),
+		realisation
+	};
 }
 
 /** Geometric mean of the poles' distances from the centre (a power of two; 1 when all sit on it). */
@@ -65,7 +76,12 @@ function pairUp(r: Roots): Roots {
 		}
 		let best = -1;
 		for (let j = i + 1; j < re.length; j++)
-			if (!used[j] && Math.sign(im[j]) === -Math.sign(im[i]) && (best < 0 || Math.hypot(re[j] - re[i], im[j] + im[i]) < Math.hypot(re[best] - re[i], im[best] + im[i])))
+			if (
+				!used[j] &&
+				Math.sign(im[j]) === -Math.sign(im[i]) &&
+				(best < 0 ||
+					Math.hypot(re[j] - re[i], im[j] + im[i]) < Math.hypot(re[best] - re[i], im[best] + im[i]))
+			)
 				best = j;
 		if (best < 0) {
 			im[i] = 0; // no partner: a real root whose rounding came out complex
@@ -112,13 +128,20 @@ function snapIntegrators(r: Roots, rho: number): Roots {
 }
 
 /** c·(sI − A)⁻¹·b by complex Gaussian elimination with partial pivoting. */
-export function transfer(a: Matrix, b: number[], c: number[], s: number, t: number): [number, number] {
+export function transfer(
+	a: Matrix,
+	b: number[],
+	c: number[],
+	s: number,
+	t: number
+): [number, number] {
 	const n = a.length;
 	const mr = a.map((row, i) => [...row.map((x, j) => (i === j ? s : 0) - x), b[i]]);
 	const mi = a.map((row, i) => [...row.map((_, j) => (i === j ? t : 0)), 0]);
 	for (let col = 0; col < n; col++) {
 		let piv = col;
-		for (let r = col + 1; r < n; r++) if (Math.hypot(mr[r][col], mi[r][col]) > Math.hypot(mr[piv][col], mi[piv][col])) piv = r;
+		for (let r = col + 1; r < n; r++)
+			if (Math.hypot(mr[r][col], mi[r][col]) > Math.hypot(mr[piv][col], mi[piv][col])) piv = r;
 		[mr[col], mr[piv]] = [mr[piv], mr[col]];
 		[mi[col], mi[piv]] = [mi[piv], mi[col]];
 		const [pr, pi] = [mr[col][col], mi[col][col]];

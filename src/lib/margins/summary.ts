@@ -15,7 +15,10 @@ export interface ModelSummary {
 }
 
 function describeBlock(b: Block): string {
-	const via = b.type !== 'measured' && b.domain === 's' && b.discretize ? ` (continuous, ${b.discretize})` : '';
+	const via =
+		b.type !== 'measured' && b.domain === 's' && b.discretize
+			? ` (continuous, ${b.discretize})`
+			: '';
 	switch (b.type) {
 		case 'polynomial':
 			return `polynomial: numerator degree ${degree(b.numerator)}, denominator degree ${degree(b.denominator)}${via}`;

@@ -10,7 +10,11 @@ import type { CaseResult, MarginFigures, WorstCase, WorstCaseSource } from './ty
 type Key = keyof MarginFigures;
 
 /** The case minimising score among those where the figure exists. */
-function pick(cases: CaseResult[], has: (c: CaseResult) => boolean, score: (c: CaseResult) => number): CaseResult | null {
+function pick(
+	cases: CaseResult[],
+	has: (c: CaseResult) => boolean,
+	score: (c: CaseResult) => number
+): CaseResult | null {
 	let best: CaseResult | null = null;
 	for (const c of cases) if (has(c) && (!best || score(c) < score(best))) best = c;
 	return best;
@@ -19,7 +23,11 @@ function pick(cases: CaseResult[], has: (c: CaseResult) => boolean, score: (c: C
 export function worstCase(cases: CaseResult[]): WorstCase {
 	const from: WorstCaseSource = {};
 	const unstable = cases.find((c) => !c.stable) ?? null;
-	const mostPoles = pick(cases, () => true, (c) => -c.unstablePoles);
+	const mostPoles = pick(
+		cases,
+		() => true,
+		(c) => -c.unstablePoles
+	);
 	const out: WorstCase = {
 		stable: unstable === null,
 		unstablePoles: mostPoles?.unstablePoles ?? 0,
@@ -46,16 +54,66 @@ export function worstCase(cases: CaseResult[]): WorstCase {
 	};
 	if (unstable) {
 		from.stable = unstable.name;
-		for (const k of ['upperGainMarginDb', 'upperGainMarginHz', 'lowerGainMarginDb', 'lowerGainMarginHz', 'delayMarginSeconds', 'delayMarginSamples', 'diskMargin'] as Key[])
+		for (const k of [
+			'upperGainMarginDb',
+			'upperGainMarginHz',
+			'lowerGainMarginDb',
+			'lowerGainMarginHz',
+			'delayMarginSeconds',
+			'delayMarginSamples',
+			'diskMargin'
+		] as Key[])
 			from[k] = unstable.name;
 	} else {
-		take(pick(cases, (c) => c.upperGainMarginDb !== null, (c) => c.upperGainMarginDb as number), ['upperGainMarginDb', 'upperGainMarginHz']);
-		take(pick(cases, (c) => c.lowerGainMarginDb !== null, (c) => -(c.lowerGainMarginDb as number)), ['lowerGainMarginDb', 'lowerGainMarginHz']);
-		take(pick(cases, (c) => c.delayMarginSeconds !== null, (c) => c.delayMarginSeconds as number), ['delayMarginSeconds', 'delayMarginSamples']);
-		take(pick(cases, (c) => c.diskMargin !== null, (c) => c.diskMargin!.alpha), ['diskMargin']);
+		take(
+			pick(
+				cases,
+				(c) => c.upperGainMarginDb !== null,
+				(c) => c.upperGainMarginDb as number
+			),
+			['upperGainMarginDb', 'upperGainMarginHz']
+		);
+		take(
+			pick(
+				cases,
+				(c) => c.lowerGainMarginDb !== null,
+				(c) => -(c.lowerGainMarginDb as number)
+			),
+			['lowerGainMarginDb', 'lowerGainMarginHz']
+		);
+		take(
+			pick(
+				cases,
+				(c) => c.delayMarginSeconds !== null,
+				(c) => c.delayMarginSeconds as number
+			),
+			['delayMarginSeconds', 'delayMarginSamples']
+		);
+		take(
+			pick(
+				cases,
+				(c) => c.diskMargin !== null,
+				(c) => c.diskMargin!.alpha
+			),
+			['diskMargin']
+		);
 	}
 	if (mostPoles && mostPoles.unstablePoles > 0) from.unstablePoles = mostPoles.name;
-	take(pick(cases, (c) => c.phaseMarginDeg !== null, (c) => Math.abs(c.phaseMarginDeg as number)), ['phaseMarginDeg', 'phaseMarginHz']);
-	take(pick(cases, (c) => c.modulusMargin !== null, (c) => c.modulusMargin as number), ['modulusMargin', 'peakSensitivity', 'peakSensitivityHz']);
+	take(
+		pick(
+			cases,
+			(c) => c.phaseMarginDeg !== null,
+			(c) => Math.abs(c.phaseMarginDeg as number)
+		),
+		['phaseMarginDeg', 'phaseMarginHz']
+	);
+	take(
+		pick(
+			cases,
+			(c) => c.modulusMargin !== null,
+			(c) => c.modulusMargin as number
+		),
+		['modulusMargin', 'peakSensitivity', 'peakSensitivityHz']
+	);
 	return out;
 }

@@ -35,7 +35,11 @@ export function sampledNumerator(sys: SampledSystem): { numW: Poly; zeros: Roots
 	const far = wRoots(shiftTo(numZ, 1), true);
 	// zeros crowding at z = 1 come out of a fit on a circle of their own size
 	let radius = 0;
-	for (let i = 0; i < sys.poles.re.length; i++) radius = Math.max(radius, Math.hypot(-(sys.poles.offRe?.[i] ?? 1 - sys.poles.re[i]), sys.poles.im[i]));
+	for (let i = 0; i < sys.poles.re.length; i++)
+		radius = Math.max(
+			radius,
+			Math.hypot(-(sys.poles.offRe?.[i] ?? 1 - sys.poles.re[i]), sys.poles.im[i])
+		);
 	radius = Math.min(0.5, Math.max(1e-12, 4 * radius));
 	const nearW = fitOnCircle(degree + 1, 1, radius, sys.poles, h);
 	const near = nearW.length - 1 === degree ? wRoots(nearW, false) : far;
@@ -63,14 +67,15 @@ function merge(far: Roots, near: Roots, within: number, degree: number): Roots {
 		const idx: number[] = [];
 		for (let i = 0; i < r.re.length; i++) {
 			const w = Math.hypot(r.offRe ? r.offRe[i] : 1 - r.re[i], r.im[i]);
-			if ((w <= within) === inside) idx.push(i);
+			if (w <= within === inside) idx.push(i);
 		}
 		return idx;
 	};
 	const a = pick(near, true);
 	const b = pick(far, false);
 	if (a.length + b.length !== degree) return far;
-	const take = (r: Roots, idx: number[]) => idx.map((i) => [r.re[i], r.im[i], r.offRe ? r.offRe[i] : 1 - r.re[i]]);
+	const take = (r: Roots, idx: number[]) =>
+		idx.map((i) => [r.re[i], r.im[i], r.offRe ? r.offRe[i] : 1 - r.re[i]]);
 	const all = [...take(near, a), ...take(far, b)];
 	return {
 		re: Float64Array.from(all, (x) => x[0]),
@@ -85,7 +90,10 @@ function merge(far: Roots, near: Roots, within: number, degree: number): Roots {
  */
 function refineOnN(sys: SampledSystem, start: Roots): { re: Float64Array; im: Float64Array } {
 	const m = start.re.length;
-	const re = Float64Array.from(start.re, (_, i) => -(start.offRe ? start.offRe[i] : 1 - start.re[i]));
+	const re = Float64Array.from(
+		start.re,
+		(_, i) => -(start.offRe ? start.offRe[i] : 1 - start.re[i])
+	);
 	const im = start.im.slice();
 	const fixed = Uint8Array.from(start.re, (_, i) => (start.offRe && start.offRe[i] === 2 ? 1 : 0));
 	for (let iter = 0; iter < 60; iter++) {
@@ -125,7 +133,12 @@ function refineOnN(sys: SampledSystem, start: Roots): { re: Float64Array; im: Fl
 		if (im[k] <= 0) continue;
 		let best = -1;
 		for (let j = 0; j < m; j++)
-			if (im[j] < 0 && (best < 0 || Math.hypot(re[j] - re[k], im[j] + im[k]) < Math.hypot(re[best] - re[k], im[best] + im[k]))) best = j;
+			if (
+				im[j] < 0 &&
+				(best < 0 ||
+					Math.hypot(re[j] - re[k], im[j] + im[k]) < Math.hypot(re[best] - re[k], im[best] + im[k]))
+			)
+				best = j;
 		if (best < 0) continue;
 		const a = 0.5 * (re[k] + re[best]);
 		const b = 0.5 * (im[k] - im[best]);
@@ -137,7 +150,8 @@ function refineOnN(sys: SampledSystem, start: Roots): { re: Float64Array; im: Fl
 /** c·Φ^k·g with Φ = M + I. */
 function markov(sys: SampledSystem, k: number): number {
 	let v = sys.g.slice();
-	for (let step = 0; step < k; step++) v = sys.m.map((row, i) => row.reduce((s, x, j) => s + x * v[j], v[i]));
+	for (let step = 0; step < k; step++)
+		v = sys.m.map((row, i) => row.reduce((s, x, j) => s + x * v[j], v[i]));
 	return sys.c.reduce((s, x, i) => s + x * v[i], 0);
 }
 
@@ -158,7 +172,8 @@ function value(sys: SampledSystem, wr: number, wi: number): [[number, number], [
 	const perm = Array.from({ length: n }, (_, i) => i);
 	for (let col = 0; col < n; col++) {
 		let piv = col;
-		for (let r = col + 1; r < n; r++) if (Math.hypot(ar[r][col], ai[r][col]) > Math.hypot(ar[piv][col], ai[piv][col])) piv = r;
+		for (let r = col + 1; r < n; r++)
+			if (Math.hypot(ar[r][col], ai[r][col]) > Math.hypot(ar[piv][col], ai[piv][col])) piv = r;
 		[ar[col], ar[piv]] = [ar[piv], ar[col]];
 		[ai[col], ai[piv]] = [ai[piv], ai[col]];
 		[perm[col], perm[piv]] = [perm[piv], perm[col]];
@@ -189,11 +204,17 @@ function value(sys: SampledSystem, wr: number, wi: number): [[number, number], [
 				yi[r] -= ar[r][j] * yi[j] + ai[r][j] * yr[j];
 			}
 			const pd = ar[r][r] ** 2 + ai[r][r] ** 2;
-			[yr[r], yi[r]] = [(yr[r] * ar[r][r] + yi[r] * ai[r][r]) / pd, (yi[r] * ar[r][r] - yr[r] * ai[r][r]) / pd];
+			[yr[r], yi[r]] = [
+				(yr[r] * ar[r][r] + yi[r] * ai[r][r]) / pd,
+				(yi[r] * ar[r][r] - yr[r] * ai[r][r]) / pd
+			];
 		}
 		return [yr, yi];
 	};
-	const [x1r, x1i] = solve(sys.g, sys.g.map(() => 0));
+	const [x1r, x1i] = solve(
+		sys.g,
+		sys.g.map(() => 0)
+	);
 	const [x2r, x2i] = solve(x1r, x1i);
 	let hr = sys.d;
 	let hi = 0;

@@ -9,9 +9,18 @@ import { describe, expect, it } from 'vitest';
 const root = fileURLToPath(new URL('../../..', import.meta.url));
 
 function run(...files: string[]) {
-	const r = spawnSync('npx', ['tsx', 'scripts/margins.ts', ...files], { cwd: root, encoding: 'utf8', timeout: 60_000 });
+	const r = spawnSync('npx', ['tsx', 'scripts/margins.ts', ...files], {
+		cwd: root,
+		encoding: 'utf8',
+		timeout: 60_000
+	});
 	const lines = r.stdout.split('\n').filter((l) => l.trim() !== '');
-	return { status: r.status, lines: lines.map((l) => JSON.parse(l)), stderr: r.stderr, stdout: r.stdout };
+	return {
+		status: r.status,
+		lines: lines.map((l) => JSON.parse(l)),
+		stderr: r.stderr,
+		stdout: r.stdout
+	};
 }
 
 const fixtures = readdirSync(new URL('../../../fixtures/models', import.meta.url)).sort();

@@ -29,7 +29,11 @@ describe('operating cases', () => {
 			})
 		);
 		const [asBuilt, hot, noDelay, other] = r.cases;
-		near(hot.phaseCrossovers[0].gainMarginDb, asBuilt.phaseCrossovers[0].gainMarginDb - dB(2), 1e-9);
+		near(
+			hot.phaseCrossovers[0].gainMarginDb,
+			asBuilt.phaseCrossovers[0].gainMarginDb - dB(2),
+			1e-9
+		);
 		near(noDelay.upperGainMarginDb, dB(60 / 24), 1e-9);
 		expect(noDelay.closedLoopPoles).toBeDefined(); // rational: no delay left
 		expect(asBuilt.closedLoopPoles).toBeUndefined();
@@ -59,7 +63,11 @@ describe('operating cases', () => {
 		const r = computeMargins(
 			model({
 				blocks: [poly([1, 0.2, 0.01], [1, 1, 0, 0, 0])], // conditionally stable: lower GM −24.08 dB
-				cases: [{ name: 'a' }, { name: 'b', gain: 2 }, { name: 'c', blocks: [poly([24], [1, 6, 11, 6])] }]
+				cases: [
+					{ name: 'a' },
+					{ name: 'b', gain: 2 },
+					{ name: 'c', blocks: [poly([24], [1, 6, 11, 6])] }
+				]
 			})
 		);
 		// 'c' has no lower limit (null); a's is −24.08 dB, b's (twice the gain) −30.10 dB: a's is closest to 0 dB
@@ -72,13 +80,20 @@ describe('operating cases', () => {
 	});
 
 	it('an unstable case makes the worst case unstable, with no gain, delay or disk margin', () => {
-		const r = computeMargins(model({ blocks: [plant], cases: [{ name: 'ok' }, { name: 'too hot', gain: 3 }] }));
+		const r = computeMargins(
+			model({ blocks: [plant], cases: [{ name: 'ok' }, { name: 'too hot', gain: 3 }] })
+		);
 		const w = r.worstCase;
 		expect(w.stable).toBe(false);
 		expect(w.unstablePoles).toBe(2);
 		expect(w.from.stable).toBe('too hot');
 		expect(w.from.unstablePoles).toBe('too hot');
-		expect([w.upperGainMarginDb, w.lowerGainMarginDb, w.delayMarginSeconds, w.diskMargin]).toEqual([null, null, null, null]);
+		expect([w.upperGainMarginDb, w.lowerGainMarginDb, w.delayMarginSeconds, w.diskMargin]).toEqual([
+			null,
+			null,
+			null,
+			null
+		]);
 		expect(w.from.upperGainMarginDb).toBe('too hot');
 		// the phase and modulus margins still come from the worst case that has them
 		expect(w.phaseMarginDeg).not.toBeNull();

@@ -9,7 +9,9 @@ const zoh = (num: number[], den: number[], T: number) => ({
 	sampleTimeSeconds: T,
 	blocks: [poly(num, den, { domain: 's', discretize: 'zoh' })]
 });
-const withPi = (num: number[], den: number[], kp: number, ki: number) => ({ blocks: [poly(num, den), { type: 'pid', kp, ki }] });
+const withPi = (num: number[], den: number[], kp: number, ki: number) => ({
+	blocks: [poly(num, den), { type: 'pid', kp, ki }]
+});
 
 describe('rational continuous loops', () => {
 	it('row 1: 24/((s+1)(s+2)(s+3))', () => {
@@ -64,7 +66,9 @@ describe('rational continuous loops', () => {
 		expect(c.stable).toBe(true);
 		expect(c.gainCrossovers.map((g) => +rad(g.hz)!.toFixed(3))).toEqual([0.085, 0.937, 1.092]);
 		// the source asserts with atol 1.5e-2 (134.7326° computed independently here as well)
-		[97.59, -157.78, 134.74].forEach((pm, i) => near(c.gainCrossovers[i].phaseMarginDeg, pm, 0.015, `PM ${i}`));
+		[97.59, -157.78, 134.74].forEach((pm, i) =>
+			near(c.gainCrossovers[i].phaseMarginDeg, pm, 0.015, `PM ${i}`)
+		);
 		near(c.phaseMarginDeg, 97.59, 0.005);
 		near(ratioOf(c.upperGainMarginDb), 2.2716, 0.00005);
 		near(rad(c.upperGainMarginHz), 10.005, 0.0005);
@@ -121,20 +125,32 @@ describe('rational continuous loops', () => {
 	});
 
 	it('rows 13 and 14: K/(s(s+a)(s+b)) and K/(s+a)³ — Routh–Hurwitz [form]', () => {
-		for (const [a, b, f] of [[0.5, 1, 0.3], [1, 40, 0.9], [300, 2000, 0.5]]) {
+		for (const [a, b, f] of [
+			[0.5, 1, 0.3],
+			[1, 40, 0.9],
+			[300, 2000, 0.5]
+		]) {
 			const ku = a * b * (a + b);
 			const c = caseOf(loop([f * ku], conv([1, 0], conv([1, a], [1, b]))));
 			near(c.upperGainMarginDb, dB(1 / f), 1e-6, `a=${a} b=${b}`);
 			nearRel(rad(c.upperGainMarginHz), Math.sqrt(a * b), 1e-6);
 		}
-		for (const [a, f] of [[0.1, 0.2], [4000, 0.95]]) {
+		for (const [a, f] of [
+			[0.1, 0.2],
+			[4000, 0.95]
+		]) {
 			const c = caseOf(loop([f * 8 * a ** 3], [1, 3 * a, 3 * a * a, a ** 3]));
 			near(c.upperGainMarginDb, dB(1 / f), 1e-6, `a=${a}`);
 			nearRel(rad(c.upperGainMarginHz), a * Math.sqrt(3), 1e-6);
 		}
 		const unstable = caseOf(loop([1.2 * 30], conv([1, 0], conv([1, 2], [1, 3]))));
 		expect(unstable.stable).toBe(false);
-		expect([unstable.upperGainMarginDb, unstable.lowerGainMarginDb, unstable.delayMarginSeconds, unstable.diskMargin]).toEqual([null, null, null, null]);
+		expect([
+			unstable.upperGainMarginDb,
+			unstable.lowerGainMarginDb,
+			unstable.delayMarginSeconds,
+			unstable.diskMargin
+		]).toEqual([null, null, null, null]);
 		expect(unstable.modulusMargin).toBeGreaterThan(0); // kept for unstable loops
 	});
 
@@ -188,7 +204,11 @@ describe('sampled loops (zero-order hold)', () => {
 
 describe('transport delay', () => {
 	it('row 15: K·e^{−sT}/s — closed forms [form]', () => {
-		for (const [K, T] of [[1, 0.5], [0.2, 6], [50, 0.002]]) {
+		for (const [K, T] of [
+			[1, 0.5],
+			[0.2, 6],
+			[50, 0.002]
+		]) {
 			const c = caseOf(loop([K], [1, 0], { delaySeconds: T }));
 			expect(c.stable).toBe(true);
 			expect(c.gainCrossovers).toHaveLength(1);

@@ -14,7 +14,8 @@ function measuredFrom(L: (w: number) => [number, number], hz: number[], openLoop
 		openLoopUnstablePoles
 	};
 }
-const logHz = (lo: number, hi: number, n: number) => Array.from({ length: n }, (_, i) => lo * (hi / lo) ** (i / (n - 1)));
+const logHz = (lo: number, hi: number, n: number) =>
+	Array.from({ length: n }, (_, i) => lo * (hi / lo) ** (i / (n - 1)));
 
 describe('the Nyquist bookkeeping', () => {
 	it('counts odd multiples of 180° strictly inside an interval, and indentation arcs', () => {
@@ -35,7 +36,11 @@ describe('continuous loops with a transport delay', () => {
 		const tau = 0.1;
 		const d = caseOf(loop([25], [1, 10, 10, 10], { delaySeconds: tau }));
 		nearRel(d.phaseMarginHz, base.phaseMarginHz!, 1e-12);
-		near(d.phaseMarginDeg, base.phaseMarginDeg! - rad(base.phaseMarginHz)! * tau * (180 / Math.PI), 1e-9);
+		near(
+			d.phaseMarginDeg,
+			base.phaseMarginDeg! - rad(base.phaseMarginHz)! * tau * (180 / Math.PI),
+			1e-9
+		);
 		nearRel(d.delayMarginSeconds, base.delayMarginSeconds! - tau, 1e-9);
 		expect(d.closedLoopPoles).toBeUndefined();
 	});
@@ -62,7 +67,11 @@ describe('continuous loops with a transport delay', () => {
 		const d = caseOf({ delaySeconds: 1e-4, blocks: [pr, plant] });
 		expect(r.stable).toBe(true);
 		expect(d.stable).toBe(true);
-		near(d.phaseMarginDeg, r.phaseMarginDeg! - rad(r.phaseMarginHz)! * 1e-4 * (180 / Math.PI), 1e-9);
+		near(
+			d.phaseMarginDeg,
+			r.phaseMarginDeg! - rad(r.phaseMarginHz)! * 1e-4 * (180 / Math.PI),
+			1e-9
+		);
 	});
 
 	it('a delayed biproper loop with |L(∞)| ≥ 1 is unstable (it encircles −1 without end)', () => {
@@ -95,7 +104,17 @@ describe('measured responses', () => {
 
 	it('a crossover exactly on a measured point (0 dB, −180° there) is found once', () => {
 		const hz = [1, 2, 3, 4, 5];
-		const c = caseOf({ blocks: [{ type: 'measured', hz, magnitudeDb: [20, 6, 0, -6, -12], phaseDeg: [-120, -150, -170, -180, -200], openLoopUnstablePoles: 0 }] });
+		const c = caseOf({
+			blocks: [
+				{
+					type: 'measured',
+					hz,
+					magnitudeDb: [20, 6, 0, -6, -12],
+					phaseDeg: [-120, -150, -170, -180, -200],
+					openLoopUnstablePoles: 0
+				}
+			]
+		});
 		expect(c.gainCrossovers).toEqual([{ hz: 3, phaseMarginDeg: 10 }]);
 		expect(c.phaseCrossovers).toHaveLength(1);
 		expect(c.phaseCrossovers[0].hz).toBeCloseTo(4, 12);
@@ -131,6 +150,10 @@ describe('measured responses', () => {
 		const a = caseOf({ blocks: [block] });
 		const b = caseOf({ delaySeconds: 0.05, blocks: [block] });
 		nearRel(b.phaseMarginHz, a.phaseMarginHz!, 1e-9);
-		near(b.phaseMarginDeg, a.phaseMarginDeg! - rad(a.phaseMarginHz)! * 0.05 * (180 / Math.PI), 1e-6);
+		near(
+			b.phaseMarginDeg,
+			a.phaseMarginDeg! - rad(a.phaseMarginHz)! * 0.05 * (180 / Math.PI),
+			1e-6
+		);
 	});
 });

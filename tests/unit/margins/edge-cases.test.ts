@@ -1,6 +1,19 @@
 import { describe, expect, it } from 'vitest';
 import { computeMargins } from '../../../src/lib/margins/index';
-import { caseOf, conv, dB, denseCrossings, loop, model, near, nearRel, poly, rad, tf, TWO_PI } from './helpers';
+import {
+	caseOf,
+	conv,
+	dB,
+	denseCrossings,
+	loop,
+	model,
+	near,
+	nearRel,
+	poly,
+	rad,
+	tf,
+	TWO_PI
+} from './helpers';
 
 describe('continuous edge cases', () => {
 	it('pure integrator 1/s: PM 90° at 1 rad/s, no phase crossover, no gain limit [form]', () => {
@@ -18,7 +31,12 @@ describe('continuous edge cases', () => {
 		const c = caseOf(loop([0.5], [1, 1]));
 		expect(c.stable).toBe(true);
 		expect([c.gainCrossovers, c.phaseCrossovers]).toEqual([[], []]);
-		expect([c.phaseMarginDeg, c.upperGainMarginDb, c.lowerGainMarginDb, c.delayMarginSeconds]).toEqual([null, null, null, null]);
+		expect([
+			c.phaseMarginDeg,
+			c.upperGainMarginDb,
+			c.lowerGainMarginDb,
+			c.delayMarginSeconds
+		]).toEqual([null, null, null, null]);
 		near(c.modulusMargin, 1, 1e-9); // |1 + L| → 1 as ω → ∞, larger elsewhere
 	});
 
@@ -65,7 +83,9 @@ describe('continuous edge cases', () => {
 		const dense = denseCrossings(tf(num, den), 1e-3, 1e3, 20000);
 		expect(c.gainCrossovers.length).toBe(dense.gain.length);
 		expect(c.gainCrossovers.length).toBe(3);
-		c.gainCrossovers.forEach((g, i) => nearRel(rad(g.hz), dense.gain[i], 1e-8, `gain crossover ${i}`));
+		c.gainCrossovers.forEach((g, i) =>
+			nearRel(rad(g.hz), dense.gain[i], 1e-8, `gain crossover ${i}`)
+		);
 		expect(c.stable).toBe(true);
 	});
 
@@ -134,7 +154,10 @@ describe('sampled edge cases', () => {
 	});
 
 	it('a gain crossover exactly at the Nyquist frequency: 1.875(z + 0.2)/(z − 0.5), |L(−1)| = 1', () => {
-		const c = caseOf({ sampleTimeSeconds: 1e-3, blocks: [{ type: 'factored', zeros: [-0.2], poles: [0.5], gain: 1.875 }] });
+		const c = caseOf({
+			sampleTimeSeconds: 1e-3,
+			blocks: [{ type: 'factored', zeros: [-0.2], poles: [0.5], gain: 1.875 }]
+		});
 		expect(c.gainCrossovers).toHaveLength(1);
 		expect(c.gainCrossovers[0].hz).toBeCloseTo(500, 9);
 		near(c.gainCrossovers[0].phaseMarginDeg, 180, 1e-9);
@@ -142,10 +165,26 @@ describe('sampled edge cases', () => {
 	});
 
 	it('poles on the unit circle: k(z − 0.5)/(z² + 1) closes inside it; 1.5/(z − 0.5) onto z = −1', () => {
-		const c = caseOf({ sampleTimeSeconds: 0.01, blocks: [{ type: 'factored', zeros: [0.5], poles: [[0, 1], [0, -1]], gain: 0.5 }] });
+		const c = caseOf({
+			sampleTimeSeconds: 0.01,
+			blocks: [
+				{
+					type: 'factored',
+					zeros: [0.5],
+					poles: [
+						[0, 1],
+						[0, -1]
+					],
+					gain: 0.5
+				}
+			]
+		});
 		expect(c.stable).toBe(true);
 		c.closedLoopPoles!.forEach(([re, im]) => nearRel(Math.hypot(re, im), Math.sqrt(0.75), 1e-12));
-		const edge = caseOf({ sampleTimeSeconds: 0.01, blocks: [{ type: 'factored', poles: [0.5], gain: 1.5 }] });
+		const edge = caseOf({
+			sampleTimeSeconds: 0.01,
+			blocks: [{ type: 'factored', poles: [0.5], gain: 1.5 }]
+		});
 		expect(edge.stable).toBe(false);
 		expect(edge.unstablePoles).toBe(1);
 		near(edge.phaseMarginDeg, 0, 1e-9);
@@ -154,7 +193,11 @@ describe('sampled edge cases', () => {
 	it('whole-sample delays z⁻ⁿ: 0.5·z⁻⁸ and 0.5·z⁻⁴⁰ close onto zⁿ = −0.5 (the xⁿ − c family)', () => {
 		for (const n of [8, 40]) {
 			const T = 1e-3;
-			const c = caseOf({ sampleTimeSeconds: T, delaySeconds: n * T, blocks: [{ type: 'factored', gain: 0.5 }] });
+			const c = caseOf({
+				sampleTimeSeconds: T,
+				delaySeconds: n * T,
+				blocks: [{ type: 'factored', gain: 0.5 }]
+			});
 			expect(c.stable).toBe(true);
 			c.closedLoopPoles!.forEach(([re, im]) => nearRel(Math.hypot(re, im), 0.5 ** (1 / n), 1e-10));
 			// |L| = 0.5 everywhere; −nθ = −180° first at θ = π/n [form]
@@ -166,12 +209,16 @@ describe('sampled edge cases', () => {
 
 	it('a long whole-sample delay beyond folding (100 samples) takes the Nyquist route and agrees', () => {
 		const T = 1e-3;
-		const c = caseOf({ sampleTimeSeconds: T, delaySeconds: 0.1, blocks: [{ type: 'factored', poles: [1], gain: T }] });
+		const c = caseOf({
+			sampleTimeSeconds: T,
+			delaySeconds: 0.1,
+			blocks: [{ type: 'factored', poles: [1], gain: T }]
+		});
 		expect(c.stable).toBe(true);
 		expect(c.closedLoopPoles).toBeUndefined();
 		// L = T/(z − 1)·z⁻¹⁰⁰: ∠L = −90° − θ/2 − 100θ; first −180° at θ = (π/2)/100.5 [form]
 		nearRel(c.phaseCrossovers[0].hz, Math.PI / 2 / 100.5 / T / TWO_PI, 1e-9);
-		near(c.upperGainMarginDb, dB(2 * Math.sin(Math.PI / 4 / 100.5) / T), 1e-8);
+		near(c.upperGainMarginDb, dB((2 * Math.sin(Math.PI / 4 / 100.5)) / T), 1e-8);
 	});
 });
 
@@ -179,8 +226,11 @@ describe('sampled loops: Tustin and the hold', () => {
 	it('Tustin keeps the continuous response at the warped frequency (2/T)·tan(ωT/2) [form]', () => {
 		const T = 0.05;
 		const cont = caseOf(loop([24], [1, 6, 11, 6]));
-		const c = caseOf({ sampleTimeSeconds: T, blocks: [poly([24], [1, 6, 11, 6], { domain: 's', discretize: 'tustin' })] });
-		const warp = (hz: number) => Math.atan((rad(hz)! * T) / 2) * (2 / T) / TWO_PI;
+		const c = caseOf({
+			sampleTimeSeconds: T,
+			blocks: [poly([24], [1, 6, 11, 6], { domain: 's', discretize: 'tustin' })]
+		});
+		const warp = (hz: number) => (Math.atan((rad(hz)! * T) / 2) * (2 / T)) / TWO_PI;
 		near(c.phaseMarginDeg, cont.phaseMarginDeg!, 1e-9);
 		nearRel(c.phaseMarginHz, warp(cont.phaseMarginHz!), 1e-9);
 		near(c.upperGainMarginDb, cont.upperGainMarginDb!, 1e-9);
@@ -189,8 +239,20 @@ describe('sampled loops: Tustin and the hold', () => {
 
 	it('Tustin of 1/(s+1) equals the z-domain block (T/(2+T))(z+1)/(z − (2−T)/(2+T))', () => {
 		const T = 0.1;
-		const a = computeMargins(model({ sampleTimeSeconds: T, blocks: [poly([3], [1, 1], { domain: 's', discretize: 'tustin' })] })).cases[0];
-		const b = computeMargins(model({ sampleTimeSeconds: T, blocks: [{ type: 'factored', zeros: [-1], poles: [(2 - T) / (2 + T)], gain: (3 * T) / (2 + T) }] })).cases[0];
+		const a = computeMargins(
+			model({
+				sampleTimeSeconds: T,
+				blocks: [poly([3], [1, 1], { domain: 's', discretize: 'tustin' })]
+			})
+		).cases[0];
+		const b = computeMargins(
+			model({
+				sampleTimeSeconds: T,
+				blocks: [
+					{ type: 'factored', zeros: [-1], poles: [(2 - T) / (2 + T)], gain: (3 * T) / (2 + T) }
+				]
+			})
+		).cases[0];
 		nearRel(a.phaseMarginHz, b.phaseMarginHz!, 1e-12);
 		near(a.phaseMarginDeg, b.phaseMarginDeg!, 1e-9);
 	});
@@ -198,7 +260,10 @@ describe('sampled loops: Tustin and the hold', () => {
 	it('a hold sampled 1000× faster than crossover stays within a fraction of a degree of the continuous loop [CHECK-VALUES property]', () => {
 		const cont = caseOf(loop([24], [1, 6, 11, 6]));
 		const T = TWO_PI / (1000 * 2.064);
-		const c = caseOf({ sampleTimeSeconds: T, blocks: [poly([24], [1, 6, 11, 6], { domain: 's', discretize: 'zoh' })] });
+		const c = caseOf({
+			sampleTimeSeconds: T,
+			blocks: [poly([24], [1, 6, 11, 6], { domain: 's', discretize: 'zoh' })]
+		});
 		near(c.phaseMarginDeg, cont.phaseMarginDeg!, 0.3);
 		near(c.upperGainMarginDb, cont.upperGainMarginDb!, 0.15); // the hold adds ωT/2 of lag: 0.08 dB here
 		nearRel(c.phaseMarginHz, cont.phaseMarginHz!, 1e-3);

@@ -2,14 +2,8 @@ import numeric from 'numeric';
 import { describe, expect, it } from 'vitest';
 import { aberth } from '../../../src/lib/margins/aberth';
 import { chebyshevRealRoots } from '../../../src/lib/margins/chebyshev';
-import {
-	continuousGainPoly,
-	cosineSeriesToY,
-	evenOdd,
-	sampledGainSeries,
-	sampledPhaseSeries,
-	sineSeriesToY
-} from '../../../src/lib/margins/crossover-polys';
+import { continuousGainPoly, evenOdd } from '../../../src/lib/margins/crossover-polys';
+import { gainPolyU, phasePolyU, shiftTo, thetaFromU } from '../../../src/lib/margins/shifted';
 import { evalReal, fromRoots } from '../../../src/lib/margins/polynomial';
 import { polyRoots, residual } from '../../../src/lib/margins/roots';
 
@@ -68,9 +62,18 @@ describe('polynomial roots', () => {
 	it('Aberth–Ehrlich on its own (the fallback) finds the same roots', () => {
 		const p = fromRoots([0.5, -3, 7], [0, 2, 0]); // includes the pair −3 ± 2j
 		const r = aberth(p);
-		const got = Array.from(r.re).map((x, i) => [x, r.im[i]]).sort((a, b) => a[0] - b[0] || a[1] - b[1]);
-		const want = [[-3, -2], [-3, 2], [0.5, 0], [7, 0]];
-		got.forEach((g, i) => expect(Math.hypot(g[0] - want[i][0], g[1] - want[i][1])).toBeLessThan(1e-12));
+		const got = Array.from(r.re)
+			.map((x, i) => [x, r.im[i]])
+			.sort((a, b) => a[0] - b[0] || a[1] - b[1]);
+		const want = [
+			[-3, -2],
+			[-3, 2],
+			[0.5, 0],
+			[7, 0]
+		];
+		got.forEach((g, i) =>
+			expect(Math.hypot(g[0] - want[i][0], g[1] - want[i][1])).toBeLessThan(1e-12)
+		);
 	});
 });
 
@@ -93,34 +96,55 @@ describe('crossover polynomials', () => {
 		expect(Math.abs(evalReal(g, w * w)) / 576).toBeLessThan(1e-12);
 	});
 
-	it('cosine and sine series in y = 1 − cos θ reproduce |N|² − |D|² and Im(N·conj D) on the circle', () => {
+	it('polynomials in u = |z − c|² reproduce g²|N|² − |D|² and Im(N·conj D)/sin θ on the circle', () => {
 		const num = [0.2, -0.5, 1.3];
 		const den = [-0.3, 0.1, 0.9, 1];
-		const cos = sampledGainSeries(num, den, 1.7);
-		const sin = sampledPhaseSeries(num, den);
-		const Y = cosineSeriesToY(cos);
-		const Q = sineSeriesToY(sin);
-		for (const t of [1e-4, 0.3, 1.5, 2.9]) {
-			const at = (p: number[]) => {
-				let re = 0;
-				let im = 0;
-				for (let i = p.length - 1; i >= 0; i--) [re, im] = [re * Math.cos(t) - im * Math.sin(t) + p[i], re * Math.sin(t) + im * Math.cos(t)];
-				return [re, im];
-			};
-			const [nr, ni] = at(num);
-			const [dr, di] = at(den);
-			const direct = 1.7 ** 2 * (nr * nr + ni * ni) - (dr * dr + di * di);
-			const y = 1 - Math.cos(t);
-			expect(evalReal(Y, y)).toBeCloseTo(direct, 10);
-			expect(Math.sin(t) * evalReal(Q, y)).toBeCloseTo(ni * dr - nr * di, 10);
+		const at = (p: number[], t: number) => {
+			let re = 0;
+			let im = 0;
+			for (let i = p.length - 1; i >= 0; i--)
+				[re, im] = [
+					re * Math.cos(t) - im * Math.sin(t) + p[i],
+					re * Math.sin(t) + im * Math.cos(t)
+				];
+			return [re, im];
+		};
+		for (const c of [1, -1] as const) {
+			const n = shiftTo(num, c);
+			const d = shiftTo(den, c);
+			const G = gainPolyU(n, d, 1.7, c);
+			const Q = phasePolyU(n, d, c);
+			for (const t of [1e-4, 0.3, 1.5, 2.9]) {
+				const [nr, ni] = at(num, t);
+				const [dr, di] = at(den, t);
+				const u = 2 - 2 * c * Math.cos(t);
+				expect(evalReal(G, u)).toBeCloseTo(
+					1.7 ** 2 * (nr * nr + ni * ni) - (dr * dr + di * di),
+					10
+				);
+				expect(Math.sin(t) * evalReal(Q, u)).toBeCloseTo(ni * dr - nr * di, 10);
+				expect(thetaFromU(u, c)).toBeCloseTo(t, 7);
+			}
 		}
+	});
+
+	it('the exact shift keeps a cluster at z = 1 that z-coefficients hold only in their last digits', () => {
+		// (z − 1)(z − a)(z − b), a = 1 − 2⁻²⁰, b = 1 − 2⁻²¹ (all coefficients exact in binary):
+		// shifted, w(w + 2⁻²⁰)(w + 2⁻²¹) = w³ + 3·2⁻²¹ w² + 2⁻⁴¹ w exactly
+		const [a, b] = [1 - 2 ** -20, 1 - 2 ** -21];
+		const z = [-a * b, a * b + a + b, -(1 + a + b), 1];
+		expect(shiftTo(z, 1)).toEqual([0, 2 ** -41, 3 * 2 ** -21, 1]);
 	});
 
 	it('colleague-matrix roots of Chebyshev series (T and U kinds)', () => {
 		const t5 = chebyshevRealRoots([0, 0, 0, 0, 0, 1], 'T').sort((a, b) => a - b);
-		[9, 7, 5, 3, 1].map((k) => Math.cos((k * Math.PI) / 10)).forEach((x, i) => expect(t5[i]).toBeCloseTo(x, 13));
+		[9, 7, 5, 3, 1]
+			.map((k) => Math.cos((k * Math.PI) / 10))
+			.forEach((x, i) => expect(t5[i]).toBeCloseTo(x, 13));
 		const u4 = chebyshevRealRoots([0, 0, 0, 0, 1], 'U').sort((a, b) => a - b);
-		[4, 3, 2, 1].map((k) => Math.cos((k * Math.PI) / 5)).forEach((x, i) => expect(u4[i]).toBeCloseTo(x, 13));
+		[4, 3, 2, 1]
+			.map((k) => Math.cos((k * Math.PI) / 5))
+			.forEach((x, i) => expect(u4[i]).toBeCloseTo(x, 13));
 		// T_40 has 40 real roots in (−1, 1); a power-basis conversion would lose them
 		const t40 = new Array<number>(41).fill(0);
 		t40[40] = 1;

@@ -3,7 +3,12 @@ import { computeMargins, sampleResponse, summarizeModel } from '../../../src/lib
 import { dB, model, near, nearRel, poly, tf, TWO_PI } from './helpers';
 
 const speedLoop = () =>
-	model({ blocks: [poly([400], [0.002, 1, 0]), { type: 'pid', kp: 0.3, ki: 6, kd: 0.0005, derivativeFilterSeconds: 0.0002 }] });
+	model({
+		blocks: [
+			poly([400], [0.002, 1, 0]),
+			{ type: 'pid', kp: 0.3, ki: 6, kd: 0.0005, derivativeFilterSeconds: 0.0002 }
+		]
+	});
 
 describe('sampleResponse', () => {
 	it('a few hundred points per case, ascending, each L(jω) as computed independently', () => {
@@ -35,11 +40,12 @@ describe('sampleResponse', () => {
 		for (const g of r.gainCrossovers) expect(c.points.some((p) => p.hz === g.hz)).toBe(true);
 	});
 
-	it('the phase is unwrapped: continuous, starting at the integrators\' −90°·m', () => {
+	it("the phase is unwrapped: continuous, starting at the integrators' −90°·m", () => {
 		const [c] = sampleResponse(model({ blocks: [poly([1], [1, 1, 0, 0])] })); // 1/(s²(s+1))
 		near(c.points[0].phaseDeg, -180, 0.5);
 		near(c.points[c.points.length - 1].phaseDeg, -180 - (Math.atan(100) * 180) / Math.PI, 1e-6); // two decades past the pole
-		for (let i = 1; i < c.points.length; i++) expect(Math.abs(c.points[i].phaseDeg - c.points[i - 1].phaseDeg)).toBeLessThan(30);
+		for (let i = 1; i < c.points.length; i++)
+			expect(Math.abs(c.points[i].phaseDeg - c.points[i - 1].phaseDeg)).toBeLessThan(30);
 		// a delay keeps winding the phase down instead of wrapping it
 		const [d] = sampleResponse(model({ delaySeconds: 0.5, blocks: [poly([1], [1, 0])] }));
 		const last = d.points[d.points.length - 1];
@@ -56,7 +62,10 @@ describe('sampleResponse', () => {
 	});
 
 	it('sampled loops stop at the Nyquist frequency and say where it is; gainScale moves |L| only', () => {
-		const m = model({ sampleTimeSeconds: 1e-3, blocks: [{ type: 'factored', poles: [1], gain: 0.00628 }] });
+		const m = model({
+			sampleTimeSeconds: 1e-3,
+			blocks: [{ type: 'factored', poles: [1], gain: 0.00628 }]
+		});
 		const [c] = sampleResponse(m);
 		expect(c.nyquistHz).toBe(500);
 		expect(c.points[c.points.length - 1].hz).toBeCloseTo(500, 9);
@@ -73,7 +82,17 @@ describe('sampleResponse', () => {
 
 	it('measured loops: the measured band only, flagged', () => {
 		const hz = Array.from({ length: 50 }, (_, i) => 10 * 1.1 ** i);
-		const m = model({ blocks: [{ type: 'measured', hz, magnitudeDb: hz.map((f) => -20 * Math.log10(f / 100)), phaseDeg: hz.map(() => -90), openLoopUnstablePoles: 0 }] });
+		const m = model({
+			blocks: [
+				{
+					type: 'measured',
+					hz,
+					magnitudeDb: hz.map((f) => -20 * Math.log10(f / 100)),
+					phaseDeg: hz.map(() => -90),
+					openLoopUnstablePoles: 0
+				}
+			]
+		});
 		const [c] = sampleResponse(m, { points: 100 });
 		expect(c.measuredOnly).toBe(true);
 		nearRel(c.points[0].hz, hz[0], 1e-12);
@@ -81,7 +100,10 @@ describe('sampleResponse', () => {
 	});
 
 	it('one response per case, in order', () => {
-		const m = model({ blocks: [poly([1], [1, 1])], cases: [{ name: 'a' }, { name: 'b', gain: 3 }] });
+		const m = model({
+			blocks: [poly([1], [1, 1])],
+			cases: [{ name: 'a' }, { name: 'b', gain: 3 }]
+		});
 		expect(sampleResponse(m).map((c) => c.name)).toEqual(['a', 'b']);
 	});
 });
@@ -92,7 +114,10 @@ describe('summarizeModel', () => {
 			model({
 				sampleTimeSeconds: 1e-4,
 				delaySeconds: 2e-4,
-				blocks: [poly([1], [0.002, 0.5], { domain: 's', discretize: 'zoh' }), { type: 'pid', kp: 3, ki: 750, domain: 's', discretize: 'tustin' }],
+				blocks: [
+					poly([1], [0.002, 0.5], { domain: 's', discretize: 'zoh' }),
+					{ type: 'pid', kp: 3, ki: 750, domain: 's', discretize: 'tustin' }
+				],
 				cases: [{ name: 'cold' }, { name: 'hot', gain: 0.8 }]
 			})
 		);
@@ -107,7 +132,19 @@ describe('summarizeModel', () => {
 			cases: ['cold', 'hot'],
 			order: 4 // one hold pole, the PI's integrator, two samples of delay
 		});
-		const m = summarizeModel(model({ blocks: [{ type: 'measured', hz: [1, 2], magnitudeDb: [0, 0], phaseDeg: [0, 0], openLoopUnstablePoles: 1 }] }));
+		const m = summarizeModel(
+			model({
+				blocks: [
+					{
+						type: 'measured',
+						hz: [1, 2],
+						magnitudeDb: [0, 0],
+						phaseDeg: [0, 0],
+						openLoopUnstablePoles: 1
+					}
+				]
+			})
+		);
 		expect(m.order).toBeNull();
 		expect(m.cases).toEqual(['nominal']);
 		expect(m.blocks[0]).toBe('measured: 2 points, 1 Hz to 2 Hz, 1 open-loop unstable poles');
