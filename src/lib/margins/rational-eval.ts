@@ -120,8 +120,9 @@ export class ContinuousEval implements LoopEval {
 	}
 }
 
-function hornerWithDerivative(
-	p: Float64Array,
+/** p(x) and p'(x) at complex x = xr + i·xi by Horner, coefficients in ascending powers. */
+export function hornerWithDerivative(
+	p: ArrayLike<number>,
 	xr: number,
 	xi: number
 ): [number, number, number, number] {

@@ -5,7 +5,7 @@
  */
 import { add, scale, trim, type Poly } from './polynomial';
 import { shiftTo } from './shifted';
-import type { ContinuousEval } from './rational-eval';
+import { hornerWithDerivative, type ContinuousEval } from './rational-eval';
 import { polyRoots } from './roots';
 
 /** Relative margin inside which a computed pole is taken to be on the boundary. */
@@ -63,18 +63,7 @@ export function sampledClosedLoop(numW: Poly, denW: Poly, gain: number): ClosedL
 
 function newton(p: Poly, xr: number, xi: number): [number, number] {
 	for (let it = 0; it < 4; it++) {
-		let pr = 0;
-		let pi = 0;
-		let dr = 0;
-		let di = 0;
-		for (let i = p.length - 1; i >= 0; i--) {
-			const tr = dr * xr - di * xi + pr;
-			di = dr * xi + di * xr + pi;
-			dr = tr;
-			const t = pr * xr - pi * xi + p[i];
-			pi = pr * xi + pi * xr;
-			pr = t;
-		}
+		const [pr, pi, dr, di] = hornerWithDerivative(p, xr, xi);
 		const d = dr * dr + di * di;
 		if (d === 0) break;
 		const sr = (pr * dr + pi * di) / d;
