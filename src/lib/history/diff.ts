@@ -177,7 +177,10 @@ export function diffRevisions(before: RevisionSide, after: RevisionSide): Revisi
 		const [a, b] = [before.result, after.result];
 		out.worstCase = compareSet(a.worstCase, b.worstCase, a.cases, b.cases, { a: a.worstCase.from, b: b.worstCase.from });
 		for (const row of out.worstCase) {
-			if (row.changeText) out.sentences.push({ text: `${capital(row.key === 'stability' ? 'the loop' : row.label)} ${row.changeText} ${since} (${row.beforeText} → ${row.afterText}).`, tone: row.tone });
+			if (!row.changeText) continue;
+			// The stability row's change already names the poles; the others show both values.
+			const text = row.key === 'stability' ? `The loop ${row.changeText} ${since}.` : `${capital(row.label)} ${row.changeText} ${since} (${row.beforeText} → ${row.afterText}).`;
+			out.sentences.push({ text, tone: row.tone });
 		}
 		const names = [...new Set([...a.cases.map((c) => c.name), ...b.cases.map((c) => c.name)])];
 		for (const name of names) {
