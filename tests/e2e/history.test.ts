@@ -96,6 +96,8 @@ describe('loop history in the browser', () => {
 		const phone = await signIn(390);
 		await phone.goto(`${baseUrl()}/loops/${loop.id}/history?a=${low}&b=${high}`);
 		await phone.getByTestId('diff-sentences').getByText(/Phase margin fell/).waitFor();
+		// Wide tables scroll inside their own box; the page itself never scrolls sideways.
+		expect(await phone.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(390);
 		await snap(phone, 'history-phone');
 		await phone.context().close();
 	});

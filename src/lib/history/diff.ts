@@ -145,8 +145,11 @@ function compareSet(
 	const vb = figureValues(b, bCases);
 	const stable = { before: a.stable, after: b.stable };
 	const rows: FigureChange[] = [compareStability(a, b)];
+	// One gain crossover on both sides: one row, not a "lowest" and a "highest" that say the same.
+	const single = va.crossoverLowHz === va.crossoverHighHz && vb.crossoverLowHz === vb.crossoverHighHz;
 	for (const info of FIGURES) {
-		const row = compareFigure(info, va[info.key], vb[info.key], stable);
+		if (single && info.key === 'crossoverHighHz') continue;
+		const row = compareFigure(single && info.key === 'crossoverLowHz' ? { ...info, label: 'gain crossover' } : info, va[info.key], vb[info.key], stable);
 		// A figure neither revision has (delay in samples of a continuous loop): not a row.
 		if (row.before === null && row.after === null && info.whenNull === 'none' && a.stable && b.stable) continue;
 		if (sources && info.source) {
@@ -194,6 +197,9 @@ export function diffRevisions(before: RevisionSide, after: RevisionSide): Revisi
 		if (added.length) out.sentences.push({ text: `Operating case${added.length > 1 ? 's' : ''} ${added.join(', ')} added ${since}.`, tone: 'neutral' });
 		if (removed.length) out.sentences.push({ text: `Operating case${removed.length > 1 ? 's' : ''} ${removed.join(', ')} removed ${since}.`, tone: 'neutral' });
 		if (!out.sentences.length) out.sentences.push({ text: `No margin figure changed ${since} at the precision shown.`, tone: 'same' });
+	}
+	if (model.length && !model.some((m) => m.changed)) {
+		out.sentences.push({ text: `Model: same structure ${since} (blocks, order, cases, timing); the file differs in its coefficients or text.`, tone: 'neutral' });
 	}
 	for (const m of model) {
 		// Case changes are told once, from the margins, when both revisions have them.

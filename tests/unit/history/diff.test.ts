@@ -170,3 +170,16 @@ describe('model summary diff', () => {
 		expect(texts(a, b)).toContain('Model: loop delay changed from 100 µs to 300 µs since revision 1.');
 	});
 });
+
+describe('crossovers and unchanged structure', () => {
+	it('shows one gain-crossover row when each side has a single crossover', () => {
+		const d = diffRevisions(side(1, result({ nominal: { phaseMarginHz: 100 } })), side(2, result({ nominal: { phaseMarginHz: 150 } })));
+		const rows = d.worstCase.filter((f) => f.key === 'crossoverLowHz' || f.key === 'crossoverHighHz');
+		expect(rows).toMatchObject([{ key: 'crossoverLowHz', label: 'gain crossover', changeText: 'moved up 50 %', tone: 'neutral' }]);
+	});
+
+	it('says the model kept its structure when only the numbers inside changed', () => {
+		const d = diffRevisions(side(1, result({ nominal: {} }), { summary: summary() }), side(2, result({ nominal: {} }), { summary: summary() }));
+		expect(d.sentences.map((s) => s.text)).toContain('Model: same structure since revision 1 (blocks, order, cases, timing); the file differs in its coefficients or text.');
+	});
+});
