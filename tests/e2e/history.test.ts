@@ -11,17 +11,30 @@ afterAll(async () => {
 });
 
 const TOKEN = 'hr_demo_engineer';
-const api = async (path: string) => (await fetch(baseUrl() + path, { headers: { authorization: `Bearer ${TOKEN}` } })).json();
+const api = async (path: string) =>
+	(await fetch(baseUrl() + path, { headers: { authorization: `Bearer ${TOKEN}` } })).json();
 
 /** k·1e6/((s+100)(s+200)(s+300)): a gain crossover once k > 6, unstable past k = 60; more gain, less phase margin. */
 const model = (gain: number) =>
-	JSON.stringify({ format: 'headroom-loop-model/1', title: 'e2e history', blocks: [{ type: 'polynomial', numerator: [gain * 1e6], denominator: [1, 600, 110000, 6e6] }] });
+	JSON.stringify({
+		format: 'headroom-loop-model/1',
+		title: 'e2e history',
+		blocks: [{ type: 'polynomial', numerator: [gain * 1e6], denominator: [1, 600, 110000, 6e6] }]
+	});
 
 async function uploadAndWait(loopId: string, gain: number, note: string): Promise<number> {
 	const body = new FormData();
-	body.set('file', new Blob([model(gain)], { type: 'application/json' }), `gain-${gain.toFixed(3)}.json`);
+	body.set(
+		'file',
+		new Blob([model(gain)], { type: 'application/json' }),
+		`gain-${gain.toFixed(3)}.json`
+	);
 	body.set('note', note);
-	const response = await fetch(`${baseUrl()}/api/loops/${loopId}/revisions`, { method: 'POST', headers: { authorization: `Bearer ${TOKEN}`, origin: baseUrl() }, body });
+	const response = await fetch(`${baseUrl()}/api/loops/${loopId}/revisions`, {
+		method: 'POST',
+		headers: { authorization: `Bearer ${TOKEN}`, origin: baseUrl() },
+		body
+	});
 	expect(response.status, await response.clone().text()).toBe(202);
 	const { revision } = await response.json();
 	for (let i = 0; i < 120; i++) {
@@ -60,7 +73,10 @@ describe('loop history in the browser', () => {
 		expect(await page.getByTestId('safety-note').first().isVisible()).toBe(true);
 		// One panel per figure, each an image with a text description, plus the table alternative.
 		for (const key of ['phaseMargin', 'upperGainMargin', 'delayMargin', 'modulusMargin']) {
-			const label = await page.getByTestId(`trend-${key}`).getByRole('img').getAttribute('aria-label');
+			const label = await page
+				.getByTestId(`trend-${key}`)
+				.getByRole('img')
+				.getAttribute('aria-label');
 			expect(label).toMatch(new RegExp(`revision ${high} `));
 		}
 		// Keyboard read-out: focus the phase-margin slider and step back one revision.
@@ -68,7 +84,9 @@ describe('loop history in the browser', () => {
 		await slider.focus();
 		await page.keyboard.press('ArrowLeft');
 		expect(await slider.innerText()).toMatch(new RegExp(`^Revision ${high - 1}:`));
-		expect(await page.locator(`[data-testid="history-table"] tr[data-number="${high}"]`).innerText()).toMatch(/gain raised for stiffness/);
+		expect(
+			await page.locator(`[data-testid="history-table"] tr[data-number="${high}"]`).innerText()
+		).toMatch(/gain raised for stiffness/);
 
 		// Pick the two revisions in the selects: the comparison is a GET, so the URL carries it.
 		await page.getByLabel('From revision').selectOption(String(low));
@@ -76,17 +94,24 @@ describe('loop history in the browser', () => {
 		await page.getByRole('button', { name: 'Compare' }).click();
 		await page.waitForURL(new RegExp(`\\?a=${low}&b=${high}$`));
 		const sentences = page.getByTestId('diff-sentences');
-		await sentences.getByText(new RegExp(`Phase margin fell [0-9.]+° since revision ${low}`)).waitFor();
+		await sentences
+			.getByText(new RegExp(`Phase margin fell [0-9.]+° since revision ${low}`))
+			.waitFor();
 		expect(await page.getByTestId('diff-model').innerText()).toMatch(/numerator degree 0/);
 		await snap(page, 'history-desktop');
 
 		// The row link compares a revision with the one before it; Back returns to the earlier choice.
-		await page.locator(`[data-testid="history-table"] tr[data-number="${low}"]`).getByRole('link', { name: /Compare with/ }).click();
+		await page
+			.locator(`[data-testid="history-table"] tr[data-number="${low}"]`)
+			.getByRole('link', { name: /Compare with/ })
+			.click();
 		await page.waitForURL(new RegExp(`\\?a=${low - 1}&b=${low}$`));
 		await page.goBack();
 		await page.waitForURL(new RegExp(`\\?a=${low}&b=${high}$`));
 		// The URL changes before the page has its data again: wait for the restored comparison.
-		await sentences.getByText(new RegExp(`Phase margin fell [0-9.]+° since revision ${low}`)).waitFor();
+		await sentences
+			.getByText(new RegExp(`Phase margin fell [0-9.]+° since revision ${low}`))
+			.waitFor();
 		expect(await page.getByLabel('From revision').inputValue()).toBe(String(low));
 
 		await page.getByTestId('back-to-loop').click();
@@ -95,9 +120,14 @@ describe('loop history in the browser', () => {
 
 		const phone = await signIn(390);
 		await phone.goto(`${baseUrl()}/loops/${loop.id}/history?a=${low}&b=${high}`);
-		await phone.getByTestId('diff-sentences').getByText(/Phase margin fell/).waitFor();
+		await phone
+			.getByTestId('diff-sentences')
+			.getByText(/Phase margin fell/)
+			.waitFor();
 		// Wide tables scroll inside their own box; the page itself never scrolls sideways.
-		expect(await phone.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(390);
+		expect(await phone.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(
+			390
+		);
 		await snap(phone, 'history-phone');
 		await phone.context().close();
 	});

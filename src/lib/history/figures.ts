@@ -34,23 +34,118 @@ export interface FigureInfo {
 	source?: keyof WorstCase['from'];
 }
 
-const f = (info: Omit<FigureInfo, 'verbs'> & { verbs?: [string, string] }): FigureInfo => ({ verbs: ['rose', 'fell'], ...info });
+const f = (info: Omit<FigureInfo, 'verbs'> & { verbs?: [string, string] }): FigureInfo => ({
+	verbs: ['rose', 'fell'],
+	...info
+});
 
 export const FIGURES: FigureInfo[] = [
-	f({ key: 'upperGainMarginDb', label: 'upper gain margin', unit: 'dB', better: 'higher', change: 'absolute', whenNull: 'unbounded', source: 'upperGainMarginDb' }),
-	f({ key: 'lowerGainMarginDb', label: 'lower gain margin', unit: 'dB', better: 'lower', change: 'absolute', whenNull: 'unbounded', verbs: ['narrowed', 'widened'], source: 'lowerGainMarginDb' }),
-	f({ key: 'phaseMarginDeg', label: 'phase margin', unit: 'deg', better: 'higher', change: 'absolute', whenNull: 'no crossover', source: 'phaseMarginDeg' }),
-	f({ key: 'delayMarginSeconds', label: 'delay margin', unit: 's', better: 'higher', change: 'relative', whenNull: 'no crossover', source: 'delayMarginSeconds' }),
-	f({ key: 'delayMarginSamples', label: 'delay margin in samples', unit: 'samples', better: 'higher', change: 'relative', whenNull: 'none', source: 'delayMarginSamples' }),
-	f({ key: 'modulusMargin', label: 'modulus margin', unit: '', better: 'higher', change: 'relative', whenNull: 'none', source: 'modulusMargin' }),
-	f({ key: 'peakSensitivity', label: 'peak sensitivity Ms', unit: '', better: 'lower', change: 'relative', whenNull: 'none', source: 'peakSensitivity' }),
-	f({ key: 'diskGainDb', label: 'disk gain margin', unit: 'dB', better: 'higher', change: 'absolute', whenNull: 'unbounded', source: 'diskMargin' }),
-	f({ key: 'diskPhaseDeg', label: 'disk phase margin', unit: 'deg', better: 'higher', change: 'absolute', whenNull: 'none', source: 'diskMargin' }),
-	f({ key: 'crossoverLowHz', label: 'lowest gain crossover', unit: 'Hz', better: 'neither', change: 'relative', whenNull: 'no crossover', verbs: ['moved up', 'moved down'] }),
-	f({ key: 'crossoverHighHz', label: 'highest gain crossover', unit: 'Hz', better: 'neither', change: 'relative', whenNull: 'no crossover', verbs: ['moved up', 'moved down'] })
+	f({
+		key: 'phaseMarginDeg',
+		label: 'phase margin',
+		unit: 'deg',
+		better: 'higher',
+		change: 'absolute',
+		whenNull: 'no crossover',
+		source: 'phaseMarginDeg'
+	}),
+	f({
+		key: 'upperGainMarginDb',
+		label: 'upper gain margin',
+		unit: 'dB',
+		better: 'higher',
+		change: 'absolute',
+		whenNull: 'unbounded',
+		source: 'upperGainMarginDb'
+	}),
+	f({
+		key: 'lowerGainMarginDb',
+		label: 'lower gain margin',
+		unit: 'dB',
+		better: 'lower',
+		change: 'absolute',
+		whenNull: 'unbounded',
+		verbs: ['narrowed', 'widened'],
+		source: 'lowerGainMarginDb'
+	}),
+	f({
+		key: 'delayMarginSeconds',
+		label: 'delay margin',
+		unit: 's',
+		better: 'higher',
+		change: 'relative',
+		whenNull: 'no crossover',
+		source: 'delayMarginSeconds'
+	}),
+	f({
+		key: 'delayMarginSamples',
+		label: 'delay margin in samples',
+		unit: 'samples',
+		better: 'higher',
+		change: 'relative',
+		whenNull: 'none',
+		source: 'delayMarginSamples'
+	}),
+	f({
+		key: 'modulusMargin',
+		label: 'modulus margin',
+		unit: '',
+		better: 'higher',
+		change: 'relative',
+		whenNull: 'none',
+		source: 'modulusMargin'
+	}),
+	f({
+		key: 'peakSensitivity',
+		label: 'peak sensitivity Ms',
+		unit: '',
+		better: 'lower',
+		change: 'relative',
+		whenNull: 'none',
+		source: 'peakSensitivity'
+	}),
+	f({
+		key: 'diskGainDb',
+		label: 'disk gain margin',
+		unit: 'dB',
+		better: 'higher',
+		change: 'absolute',
+		whenNull: 'unbounded',
+		source: 'diskMargin'
+	}),
+	f({
+		key: 'diskPhaseDeg',
+		label: 'disk phase margin',
+		unit: 'deg',
+		better: 'higher',
+		change: 'absolute',
+		whenNull: 'none',
+		source: 'diskMargin'
+	}),
+	f({
+		key: 'crossoverLowHz',
+		label: 'lowest gain crossover',
+		unit: 'Hz',
+		better: 'neither',
+		change: 'relative',
+		whenNull: 'no crossover',
+		verbs: ['moved up', 'moved down']
+	}),
+	f({
+		key: 'crossoverHighHz',
+		label: 'highest gain crossover',
+		unit: 'Hz',
+		better: 'neither',
+		change: 'relative',
+		whenNull: 'no crossover',
+		verbs: ['moved up', 'moved down']
+	})
 ];
 
-export const FIGURE_INFO = Object.fromEntries(FIGURES.map((x) => [x.key, x])) as Record<FigureKey, FigureInfo>;
+export const FIGURE_INFO = Object.fromEntries(FIGURES.map((x) => [x.key, x])) as Record<
+	FigureKey,
+	FigureInfo
+>;
 
 /** Lowest and highest gain crossover over some cases. */
 function crossovers(cases: Pick<CaseResult, 'gainCrossovers'>[]): [number | null, number | null] {

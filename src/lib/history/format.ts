@@ -51,6 +51,13 @@ export function withUnit(v: number, unit: Unit): string {
 	}
 }
 
+/** Axis ticks: as few digits as the value needs ("100°", "2.5 dB", "1.5 ms"). */
+export function tick(v: number, unit: Unit): string {
+	if (unit === 'deg') return `${plain(v)}°`;
+	if (unit === 'dB') return `${plain(v)} dB`;
+	return withUnit(v, unit);
+}
+
 /** An absolute change in the figure's unit, as a magnitude ("12.0°", "2.3 dB"). */
 export function amount(delta: number, unit: Unit): string {
 	return withUnit(Math.abs(delta), unit);

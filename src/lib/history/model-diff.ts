@@ -23,21 +23,39 @@ const time = (v: number | null, none: string) => (v === null ? none : seconds(v)
 export function summaryRows(s: ModelSummary): { field: string; label: string; text: string }[] {
 	return [
 		{ field: 'kind', label: 'Kind', text: kind(s) },
-		{ field: 'sampleTime', label: 'Sample time', text: time(s.sampleTimeSeconds, '— (continuous)') },
+		{
+			field: 'sampleTime',
+			label: 'Sample time',
+			text: time(s.sampleTimeSeconds, '— (continuous)')
+		},
 		{ field: 'delay', label: 'Loop delay', text: time(s.delaySeconds, 'none') },
-		{ field: 'order', label: 'Order (nominal)', text: s.order === null ? '— (measured data)' : String(s.order) },
+		{
+			field: 'order',
+			label: 'Order (nominal)',
+			text: s.order === null ? '— (measured data)' : String(s.order)
+		},
 		{ field: 'cases', label: 'Operating cases', text: s.cases.join(', ') },
 		...s.blocks.map((b, i) => ({ field: `block${i + 1}`, label: `Block ${i + 1}`, text: b }))
 	];
 }
 
-function sentence(field: string, label: string, before: string | undefined, after: string | undefined, a: ModelSummary, b: ModelSummary): string {
+function sentence(
+	field: string,
+	label: string,
+	before: string | undefined,
+	after: string | undefined,
+	a: ModelSummary,
+	b: ModelSummary
+): string {
 	const name = label.charAt(0).toLowerCase() + label.slice(1);
 	if (field === 'kind') return `the loop became ${kind(b)} (was ${kind(a)})`;
 	if (field === 'cases') {
 		const added = b.cases.filter((c) => !a.cases.includes(c));
 		const removed = a.cases.filter((c) => !b.cases.includes(c));
-		const parts = [added.length && `added ${added.map((c) => `“${c}”`).join(', ')}`, removed.length && `removed ${removed.map((c) => `“${c}”`).join(', ')}`].filter(Boolean);
+		const parts = [
+			added.length && `added ${added.map((c) => `“${c}”`).join(', ')}`,
+			removed.length && `removed ${removed.map((c) => `“${c}”`).join(', ')}`
+		].filter(Boolean);
 		return `operating cases ${parts.length ? parts.join('; ') : 'reordered'}`;
 	}
 	if (before === undefined) return `${name} added (${after})`;
@@ -68,9 +86,11 @@ export function diffSummaries(a: ModelSummary | null, b: ModelSummary | null): M
 		};
 	});
 	// "became sampled" already says the sample time appeared or went.
-	if (a.sampled !== b.sampled) for (const r of rows) if (r.field === 'sampleTime') r.sentence = null;
+	if (a.sampled !== b.sampled)
+		for (const r of rows) if (r.field === 'sampleTime') r.sentence = null;
 	return rows;
 }
 
 const FIXED = ['kind', 'sampleTime', 'delay', 'order', 'cases'];
-const order = (field: string) => (FIXED.includes(field) ? FIXED.indexOf(field) : FIXED.length + Number(field.slice(5)));
+const order = (field: string) =>
+	FIXED.includes(field) ? FIXED.indexOf(field) : FIXED.length + Number(field.slice(5));

@@ -54,7 +54,13 @@ export interface HistoryRevision {
 }
 
 export interface LoopHistory {
-	loop: { id: string; key: string; name: string; product: { key: string; name: string }; class: { key: string; name: string } };
+	loop: {
+		id: string;
+		key: string;
+		name: string;
+		product: { key: string; name: string };
+		class: { key: string; name: string };
+	};
 	/** Oldest first. */
 	revisions: HistoryRevision[];
 	/** Every requirement version of the loop's class, oldest first. */

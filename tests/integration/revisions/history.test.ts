@@ -25,7 +25,12 @@ const saved = process.env.DATABASE_URL;
 // 8/((s+1)(s+2)(s+3)) and 24/(…) with frequencies scaled by 2π·50 (see pipeline.test.ts):
 // the first meets PM ≥ 45°, the second (PM 35.4°) does not.
 const w = 2 * Math.PI * 50;
-const plant = (gain: number) => ({ type: 'factored', zeros: [], poles: [-w, -2 * w, -3 * w], gain: gain * w ** 3 });
+const plant = (gain: number) => ({
+	type: 'factored',
+	zeros: [],
+	poles: [-w, -2 * w, -3 * w],
+	gain: gain * w ** 3
+});
 const first = { format: 'headroom-loop-model/1', title: 'rig identification', blocks: [plant(8)] };
 const second = {
 	format: 'headroom-loop-model/1',
@@ -34,9 +39,16 @@ const second = {
 	blocks: [plant(24)],
 	cases: [{ name: 'nominal' }, { name: 'hot', gain: 1.1 }]
 };
-const broken = { format: 'headroom-loop-model/1', blocks: [{ type: 'polynomial', numerator: [1], denominator: [0, 1] }] };
+const broken = {
+	format: 'headroom-loop-model/1',
+	blocks: [{ type: 'polynomial', numerator: [1], denominator: [0, 1] }]
+};
 
-async function until<T>(what: string, probe: () => Promise<T | undefined>, ms = 30_000): Promise<T> {
+async function until<T>(
+	what: string,
+	probe: () => Promise<T | undefined>,
+	ms = 30_000
+): Promise<T> {
 	const end = Date.now() + ms;
 	for (;;) {
 		const v = await probe();
@@ -47,7 +59,11 @@ async function until<T>(what: string, probe: () => Promise<T | undefined>, ms = 
 }
 
 async function upload(model: object, fileName: string, note: string) {
-	const rev = await uploadRevision(r.em(), r.users.engineer, scenario.loop.id, { fileName, bytes: new TextEncoder().encode(JSON.stringify(model)), note });
+	const rev = await uploadRevision(r.em(), r.users.engineer, scenario.loop.id, {
+		fileName,
+		bytes: new TextEncoder().encode(JSON.stringify(model)),
+		note
+	});
 	return until(`revision ${rev.number} to settle`, async () => {
 		const v = await getRevision(r.em(), rev.id);
 		return v.state === 'computed' || v.state === 'rejected' ? v : undefined;
@@ -55,11 +71,21 @@ async function upload(model: object, fileName: string, note: string) {
 }
 
 const verdictOf = async (loopId: string) =>
-	(await r.em().getConnection().execute<{ verdict: string }[]>('select verdict from loop where id = ?', [loopId]))[0].verdict;
+	(
+		await r
+			.em()
+			.getConnection()
+			.execute<{ verdict: string }[]>('select verdict from loop where id = ?', [loopId])
+	)[0].verdict;
 
 async function call(who: Actor | null, query = '', id = scenario.loop.id, scopes = ['read']) {
 	const url = new URL(`http://headroom.test/api/loops/${id}/history${query}`);
-	const response = await route.GET({ url, request: new Request(url), params: { id }, locals: { user: who, scopes: who ? scopes : [], requestId: 't' } } as never);
+	const response = await route.GET({
+		url,
+		request: new Request(url),
+		params: { id },
+		locals: { user: who, scopes: who ? scopes : [], requestId: 't' }
+	} as never);
 	return { status: response.status, body: await response.json() };
 }
 
@@ -77,7 +103,9 @@ beforeAll(async () => {
 	await until('the worker', async () => (log.includes('ready') ? true : undefined));
 
 	expect((await upload(first, 'rig.json', 'first identification')).state).toBe('computed');
-	await until('the first verdict', async () => ((await verdictOf(scenario.loop.id)) === 'compliant' ? true : undefined));
+	await until('the first verdict', async () =>
+		(await verdictOf(scenario.loop.id)) === 'compliant' ? true : undefined
+	);
 	// Tighter targets: revision 1 falls short of them (a verdict change while it is the latest).
 	await setRequirement(r.em(), r.users.lead, scenario.loopClass.key, {
 		minPhaseMarginDeg: '120',
@@ -86,7 +114,9 @@ beforeAll(async () => {
 		crossoverMaxHz: '300',
 		reason: 'tighter phase margin for the new encoder'
 	});
-	await until('the re-judged verdict', async () => ((await verdictOf(scenario.loop.id)) === 'noncompliant' ? true : undefined));
+	await until('the re-judged verdict', async () =>
+		(await verdictOf(scenario.loop.id)) === 'noncompliant' ? true : undefined
+	);
 	expect((await upload(second, 'rig-hot.json', 'gain raised; hot case')).state).toBe('computed');
 	expect((await upload(broken, 'broken.json', 'typo')).state).toBe('rejected');
 }, 120_000);
@@ -122,14 +152,24 @@ describe('loop history', () => {
 		expect(two.caseNames).toEqual(['nominal', 'hot']);
 
 		// Revision 1: judged compliant against v1, then non-compliant when v2 came into force.
-		expect(one.verdict).toMatchObject({ verdict: 'compliant', changed: true, requirementVersion: 1, cause: 'revision' });
+		expect(one.verdict).toMatchObject({
+			verdict: 'compliant',
+			changed: true,
+			requirementVersion: 1,
+			cause: 'revision'
+		});
 		expect(one.requirementVersion).toBe(1);
-		expect(one.laterVerdicts).toMatchObject([{ verdict: 'noncompliant', cause: 'requirement', requirementVersion: 2 }]);
+		expect(one.laterVerdicts).toMatchObject([
+			{ verdict: 'noncompliant', cause: 'requirement', requirementVersion: 2 }
+		]);
 		// Revision 2 kept the verdict the loop already had: no event of its own.
 		expect(two.verdict).toMatchObject({ verdict: 'noncompliant', changed: false });
 		expect(two.requirementVersion).toBe(2);
 		// A refused model keeps its message and path, and was never judged.
-		expect(three.error).toEqual({ message: expect.stringMatching(/leading coefficient/i), path: 'blocks[0].denominator' });
+		expect(three.error).toEqual({
+			message: expect.stringMatching(/leading coefficient/i),
+			path: 'blocks[0].denominator'
+		});
 		expect(three.verdict).toBeNull();
 		expect(three.worstCase).toBeNull();
 	});
@@ -142,7 +182,9 @@ describe('loop history', () => {
 		]);
 		expect(h.requirements[0].inForceUntil).toBe(h.requirements[1].inForceFrom);
 		expect(h.requirements[1].inForceUntil).toBeNull();
-		expect(Date.parse(h.requirements[1].inForceFrom)).toBeLessThan(Date.parse(h.revisions[1].uploadedAt));
+		expect(Date.parse(h.requirements[1].inForceFrom)).toBeLessThan(
+			Date.parse(h.revisions[1].uploadedAt)
+		);
 	});
 
 	it('compares two revisions: margin sentences and the model summaries read from storage', async () => {
@@ -150,7 +192,9 @@ describe('loop history', () => {
 		const texts = c.diff.sentences.map((s) => s.text);
 		const pm = c.diff.worstCase.find((f) => f.key === 'phaseMarginDeg')!;
 		expect(pm.tone).toBe('worse');
-		expect(texts).toContain(`Phase margin fell ${Math.abs(pm.delta!).toFixed(1)}° since revision 1 (${pm.beforeText} → ${pm.afterText}).`);
+		expect(texts).toContain(
+			`Phase margin fell ${Math.abs(pm.delta!).toFixed(1)}° since revision 1 (${pm.beforeText} → ${pm.afterText}).`
+		);
 		expect(texts).toContain('Operating case “hot” added since revision 1.');
 		expect(texts).toContain('Model: loop delay changed from none to 100 µs since revision 1.');
 		expect(c.a.summary?.cases).toEqual(['nominal']);
@@ -164,7 +208,9 @@ describe('loop history', () => {
 	it('explains a comparison with a rejected revision instead of inventing margins', async () => {
 		const c = await compareRevisions(r.em(), scenario.loop.id, 2, 3);
 		expect(c.diff.worstCase).toEqual([]);
-		expect(c.diff.notes[0]).toMatch(/^Revision 3 was rejected \(.*leading coefficient.* at blocks\[0\]\.denominator\)/i);
+		expect(c.diff.notes[0]).toMatch(
+			/^Revision 3 was rejected \(.*leading coefficient.* at blocks\[0\]\.denominator\)/i
+		);
 		expect(c.b.summary).toBeNull();
 		expect(c.b.summaryProblem).toMatch(/refused/);
 	});
@@ -181,13 +227,30 @@ describe('loop history', () => {
 	});
 
 	it('answers bad requests with the error body, naming the parameter', async () => {
-		expect(await call(null)).toMatchObject({ status: 401, body: { error: { code: 'unauthenticated' } } });
+		expect(await call(null)).toMatchObject({
+			status: 401,
+			body: { error: { code: 'unauthenticated' } }
+		});
 		expect(await call(r.users.viewer, '', scenario.loop.id, [])).toMatchObject({ status: 403 });
-		expect(await call(r.users.viewer, '?a=1')).toMatchObject({ status: 400, body: { error: { code: 'invalid', path: 'b' } } });
-		expect(await call(r.users.viewer, '?a=x&b=2')).toMatchObject({ status: 400, body: { error: { path: 'a' } } });
-		expect(await call(r.users.viewer, '?a=2&b=2')).toMatchObject({ status: 400, body: { error: { path: 'b' } } });
-		expect(await call(r.users.viewer, '?a=1&b=9')).toMatchObject({ status: 404, body: { error: { message: 'This loop has no revision 9 (b).' } } });
-		expect(await call(r.users.viewer, '', '00000000-0000-4000-8000-000000000000')).toMatchObject({ status: 404 });
+		expect(await call(r.users.viewer, '?a=1')).toMatchObject({
+			status: 400,
+			body: { error: { code: 'invalid', path: 'b' } }
+		});
+		expect(await call(r.users.viewer, '?a=x&b=2')).toMatchObject({
+			status: 400,
+			body: { error: { path: 'a' } }
+		});
+		expect(await call(r.users.viewer, '?a=2&b=2')).toMatchObject({
+			status: 400,
+			body: { error: { path: 'b' } }
+		});
+		expect(await call(r.users.viewer, '?a=1&b=9')).toMatchObject({
+			status: 404,
+			body: { error: { message: 'This loop has no revision 9 (b).' } }
+		});
+		expect(await call(r.users.viewer, '', '00000000-0000-4000-8000-000000000000')).toMatchObject({
+			status: 404
+		});
 		expect(await call(r.users.viewer, '', 'not-a-uuid')).toMatchObject({ status: 404 });
 	});
 });

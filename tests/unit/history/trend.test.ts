@@ -4,7 +4,11 @@ import type { HistoryRequirement, HistoryRevision } from '../../../src/lib/histo
 import type { WorstCase } from '../../../src/lib/margins/types';
 import { fullTargets } from '../../../src/lib/registry/targets';
 
-const requirement = (version: number, from: string, targets: Record<string, string>): HistoryRequirement => ({
+const requirement = (
+	version: number,
+	from: string,
+	targets: Record<string, string>
+): HistoryRequirement => ({
 	id: `q${version}`,
 	version,
 	targets: fullTargets(targets),
@@ -33,7 +37,12 @@ const worst = (over: Partial<WorstCase> = {}): WorstCase => ({
 	...over
 });
 
-const revision = (number: number, requirementVersion: number | null, w: WorstCase | null, state: HistoryRevision['state'] = 'computed'): HistoryRevision => ({
+const revision = (
+	number: number,
+	requirementVersion: number | null,
+	w: WorstCase | null,
+	state: HistoryRevision['state'] = 'computed'
+): HistoryRevision => ({
 	id: `r${number}`,
 	number,
 	state,
@@ -56,7 +65,11 @@ const revision = (number: number, requirementVersion: number | null, w: WorstCas
 
 const reqs = [
 	requirement(1, '2026-01-01T00:00:00Z', { minPhaseMarginDeg: '45', maxPeakSensitivity: '2' }),
-	requirement(2, '2026-02-01T00:00:00Z', { minPhaseMarginDeg: '55', minModulusMargin: '0.4', maxPeakSensitivity: '2' })
+	requirement(2, '2026-02-01T00:00:00Z', {
+		minPhaseMarginDeg: '55',
+		minModulusMargin: '0.4',
+		maxPeakSensitivity: '2'
+	})
 ];
 
 describe('trend panels', () => {
@@ -75,7 +88,13 @@ describe('trend panels', () => {
 	});
 
 	it('draws the stricter of the modulus minimum and 1 / max Ms', () => {
-		const panels = trendPanels([revision(1, 1, worst({ modulusMargin: 0.45, peakSensitivity: 1 / 0.45 })), revision(2, 2, worst())], reqs);
+		const panels = trendPanels(
+			[
+				revision(1, 1, worst({ modulusMargin: 0.45, peakSensitivity: 1 / 0.45 })),
+				revision(2, 2, worst())
+			],
+			reqs
+		);
 		const mod = panels.find((p) => p.key === 'modulusMargin')!;
 		expect(mod.points.map((p) => [p.target, p.status])).toEqual([
 			[0.5, 'fail'],
@@ -86,7 +105,12 @@ describe('trend panels', () => {
 
 	it('marks unbounded, unstable, rejected and untargeted points', () => {
 		const panels = trendPanels(
-			[revision(1, 1, worst({ upperGainMarginDb: null })), revision(2, 1, worst({ stable: false, unstablePoles: 1 })), revision(3, 1, null, 'rejected'), revision(4, null, worst())],
+			[
+				revision(1, 1, worst({ upperGainMarginDb: null })),
+				revision(2, 1, worst({ stable: false, unstablePoles: 1 })),
+				revision(3, 1, null, 'rejected'),
+				revision(4, null, worst())
+			],
 			reqs
 		);
 		const gm = panels.find((p) => p.key === 'upperGainMargin')!;

@@ -11,8 +11,20 @@ import type { Verdict } from '../../compliance/judge';
 import { diffRevisions } from '../../history/diff';
 import { shortSha } from '../../history/format';
 import { inForceAt } from '../../history/trend';
-import type { ComparedRevision, HistoryRequirement, HistoryRevision, HistoryVerdict, LoopHistory, RevisionComparison } from '../../history/types';
-import { MarginReportSchema, RequirementSchema, RevisionSchema, type Revision } from '../db/entities';
+import type {
+	ComparedRevision,
+	HistoryRequirement,
+	HistoryRevision,
+	HistoryVerdict,
+	LoopHistory,
+	RevisionComparison
+} from '../../history/types';
+import {
+	MarginReportSchema,
+	RequirementSchema,
+	RevisionSchema,
+	type Revision
+} from '../db/entities';
 import { Invalid, NotFound } from '../errors';
 import { fullTargets } from '../../registry/targets';
 import { loopById } from '../registry/loops';
@@ -59,18 +71,32 @@ function verdictsOf(r: Revision, numberOf: Map<string, number>, events: EventRow
 	const arrival = own.find((e) => e.cause === 'revision' || e.cause === 'reconcile');
 	const later = own.filter((e) => e !== arrival).map((e) => toVerdict(e));
 	if (arrival) return { verdict: toVerdict(arrival), later };
-	const before = events.filter((e) => e.revision_id && (numberOf.get(e.revision_id) ?? Infinity) < r.number).at(-1);
+	const before = events
+		.filter((e) => e.revision_id && (numberOf.get(e.revision_id) ?? Infinity) < r.number)
+		.at(-1);
 	return { verdict: before ? toVerdict(before, false) : null, later };
 }
 
 export async function loopHistory(em: EntityManager, loopId: string): Promise<LoopHistory> {
 	const loop = await loopById(em, loopId);
-	const rows = await em.find(RevisionSchema, { loop: loop.id }, { populate: ['uploadedBy'], orderBy: { number: 'asc' } });
+	const rows = await em.find(
+		RevisionSchema,
+		{ loop: loop.id },
+		{ populate: ['uploadedBy'], orderBy: { number: 'asc' } }
+	);
 	const reports = rows.length
-		? await em.find(MarginReportSchema, { revision: { $in: rows.map((r) => r.id) } }, { fields: ['revision', 'engineVersion', 'result'] })
+		? await em.find(
+				MarginReportSchema,
+				{ revision: { $in: rows.map((r) => r.id) } },
+				{ fields: ['revision', 'engineVersion', 'result'] }
+			)
 		: [];
 	const byRevision = new Map(reports.map((m) => [m.revision.id, m]));
-	const versions = await em.find(RequirementSchema, { loopClass: loop.loopClass.id }, { populate: ['author'], orderBy: { version: 'asc' } });
+	const versions = await em.find(
+		RequirementSchema,
+		{ loopClass: loop.loopClass.id },
+		{ populate: ['author'], orderBy: { version: 'asc' } }
+	);
 	const requirements: HistoryRequirement[] = versions.map((q, i) => ({
 		id: q.id,
 		version: q.version,
@@ -103,7 +129,8 @@ export async function loopHistory(em: EntityManager, loopId: string): Promise<Lo
 			engineVersion: report?.engineVersion ?? null,
 			worstCase: result?.worstCase ?? null,
 			caseNames: result?.cases.map((c) => c.name) ?? [],
-			requirementVersion: verdict?.requirementVersion ?? inForceAt(requirements, judgedAt)?.version ?? null,
+			requirementVersion:
+				verdict?.requirementVersion ?? inForceAt(requirements, judgedAt)?.version ?? null,
 			verdict,
 			laterVerdicts: later
 		};
@@ -122,8 +149,11 @@ export async function loopHistory(em: EntityManager, loopId: string): Promise<Lo
 }
 
 /** The engine's summary of a revision's model file, read from the object store. */
-async function summaryOf(r: Revision): Promise<{ summary: ModelSummary | null; problem: string | null }> {
-	if (r.state === 'awaiting-upload') return { summary: null, problem: 'the file has not arrived yet' };
+async function summaryOf(
+	r: Revision
+): Promise<{ summary: ModelSummary | null; problem: string | null }> {
+	if (r.state === 'awaiting-upload')
+		return { summary: null, problem: 'the file has not arrived yet' };
 	let bytes: Uint8Array;
 	try {
 		bytes = await getObjectBytes(r.objectKey);
@@ -137,19 +167,26 @@ async function summaryOf(r: Revision): Promise<{ summary: ModelSummary | null; p
 		return { summary: null, problem: 'the file is not text' };
 	}
 	const parsed = parseModelText(text, r.fileName);
-	if (!parsed.ok) return { summary: null, problem: `the model was refused: ${parsed.issue.message}` };
+	if (!parsed.ok)
+		return { summary: null, problem: `the model was refused: ${parsed.issue.message}` };
 	return { summary: summarizeModel(parsed.model), problem: null };
 }
 
 /** A revision number from the query string, or a 400 naming the parameter. */
 export function revisionNumber(raw: string | null, name: string): number | undefined {
 	if (raw === null || raw === '') return undefined;
-	if (!/^\d+$/.test(raw) || Number(raw) < 1) throw new Invalid(`${name} must be a revision number (1, 2, 3…).`, name);
+	if (!/^\d+$/.test(raw) || Number(raw) < 1)
+		throw new Invalid(`${name} must be a revision number (1, 2, 3…).`, name);
 	return Number(raw);
 }
 
 /** Compare revision `a` with revision `b` of a loop (the sentences say what changed since `a`). */
-export async function compareRevisions(em: EntityManager, loopId: string, a: number, b: number): Promise<RevisionComparison> {
+export async function compareRevisions(
+	em: EntityManager,
+	loopId: string,
+	a: number,
+	b: number
+): Promise<RevisionComparison> {
 	const loop = await loopById(em, loopId);
 	const rows = await em.find(RevisionSchema, { loop: loop.id, number: { $in: [a, b] } });
 	const find = (n: number, name: string) => {
@@ -159,7 +196,8 @@ export async function compareRevisions(em: EntityManager, loopId: string, a: num
 	};
 	const [ra, rb] = [find(a, 'a'), find(b, 'b')];
 	const reports = await em.find(MarginReportSchema, { revision: { $in: [ra.id, rb.id] } });
-	const resultOf = (r: Revision) => (reports.find((m) => m.revision.id === r.id)?.result as MarginsResult | undefined) ?? null;
+	const resultOf = (r: Revision) =>
+		(reports.find((m) => m.revision.id === r.id)?.result as MarginsResult | undefined) ?? null;
 	const [sa, sb] = await Promise.all([summaryOf(ra), summaryOf(rb)]);
 	const side = (r: Revision, s: { summary: ModelSummary | null }) => ({
 		number: r.number,
@@ -168,7 +206,10 @@ export async function compareRevisions(em: EntityManager, loopId: string, a: num
 		summary: s.summary,
 		error: r.errorMessage ? { message: r.errorMessage, path: r.errorPath ?? '' } : null
 	});
-	const compared = (r: Revision, s: { summary: ModelSummary | null; problem: string | null }): ComparedRevision => ({
+	const compared = (
+		r: Revision,
+		s: { summary: ModelSummary | null; problem: string | null }
+	): ComparedRevision => ({
 		number: r.number,
 		state: r.state,
 		fileName: r.fileName,
@@ -176,5 +217,9 @@ export async function compareRevisions(em: EntityManager, loopId: string, a: num
 		summary: s.summary,
 		summaryProblem: s.problem
 	});
-	return { a: compared(ra, sa), b: compared(rb, sb), diff: diffRevisions(side(ra, sa), side(rb, sb)) };
+	return {
+		a: compared(ra, sa),
+		b: compared(rb, sb),
+		diff: diffRevisions(side(ra, sa), side(rb, sb))
+	};
 }

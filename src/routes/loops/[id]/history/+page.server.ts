@@ -18,13 +18,17 @@ export const load = (async (event) => {
 	// By default the two latest computed revisions (or the two latest of any state).
 	const computed = history.revisions.filter((r) => r.state === 'computed').map((r) => r.number);
 	const defaults = computed.length >= 2 ? computed.slice(-2) : numbers.slice(-2);
-	const asked = { a: pick(event.url.searchParams.get('a')), b: pick(event.url.searchParams.get('b')) };
+	const asked = {
+		a: pick(event.url.searchParams.get('a')),
+		b: pick(event.url.searchParams.get('b'))
+	};
 	const a = asked.a ?? defaults[0];
 	const b = asked.b ?? defaults[1];
 	let problem: string | null = null;
 	let comparison = null;
 	if (numbers.length >= 2 && a !== undefined && b !== undefined) {
-		if (!numbers.includes(a) || !numbers.includes(b)) problem = `This loop has no revision ${numbers.includes(a) ? b : a}; pick one from the lists.`;
+		if (!numbers.includes(a) || !numbers.includes(b))
+			problem = `This loop has no revision ${numbers.includes(a) ? b : a}; pick one from the lists.`;
 		else if (a === b) problem = 'Pick two different revisions to compare.';
 		else comparison = await compareRevisions(em, history.loop.id, Math.min(a, b), Math.max(a, b));
 	}

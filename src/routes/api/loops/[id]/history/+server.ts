@@ -16,10 +16,13 @@ export const GET = (async (event) =>
 		const params = event.url.searchParams;
 		const a = revisionNumber(params.get('a'), 'a');
 		const b = revisionNumber(params.get('b'), 'b');
-		if ((a === undefined) !== (b === undefined)) throw new Invalid('Give both a and b to compare two revisions.', a === undefined ? 'a' : 'b');
-		if (a !== undefined && a === b) throw new Invalid('a and b must be two different revisions.', 'b');
+		if ((a === undefined) !== (b === undefined))
+			throw new Invalid('Give both a and b to compare two revisions.', a === undefined ? 'a' : 'b');
+		if (a !== undefined && a === b)
+			throw new Invalid('a and b must be two different revisions.', 'b');
 		const em = await forkEm();
 		const history = await loopHistory(em, event.params.id);
-		const comparison = a !== undefined && b !== undefined ? await compareRevisions(em, event.params.id, a, b) : null;
+		const comparison =
+			a !== undefined && b !== undefined ? await compareRevisions(em, event.params.id, a, b) : null;
 		return json({ ...history, comparison });
 	})) satisfies RequestHandler;
