@@ -15,6 +15,7 @@ import { setRequirement } from '../../../src/lib/server/registry/requirements';
 import { closeOrm } from '../../../src/lib/server/db/orm';
 import type { Actor } from '../../../src/lib/server/registry/common';
 import * as route from '../../../src/routes/api/loops/[id]/history/+server';
+import * as pageRoute from '../../../src/routes/loops/[id]/history/+page.server';
 
 let r: Registry;
 let worker: ChildProcess;
@@ -252,5 +253,39 @@ describe('loop history', () => {
 			status: 404
 		});
 		expect(await call(r.users.viewer, '', 'not-a-uuid')).toMatchObject({ status: 404 });
+	});
+
+	it('loads the page with the two latest computed revisions compared, or says what is wrong with the choice', async () => {
+		const load = async (query: string) => {
+			const url = new URL(`http://headroom.test/loops/${scenario.loop.id}/history${query}`);
+			const event = {
+				url,
+				request: new Request(url),
+				params: { id: scenario.loop.id },
+				locals: { user: r.users.viewer, scopes: ['read'], requestId: 't' }
+			};
+			return (await pageRoute.load(event as never)) as Exclude<
+				Awaited<ReturnType<typeof pageRoute.load>>,
+				void
+			>;
+		};
+		const plain = await load('');
+		expect(plain.selected).toEqual({ a: 1, b: 2 });
+		expect(plain.comparison?.diff.before).toBe(1);
+		// Reversed in the URL: still told as "since" the older one.
+		expect((await load('?a=2&b=1')).comparison?.diff.sentences[0].text).toMatch(/since revision 1/);
+		expect((await load('?a=1&b=7')).problem).toBe(
+			'This loop has no revision 7; pick one from the lists.'
+		);
+		expect((await load('?a=2&b=2')).problem).toBe('Pick two different revisions to compare.');
+		const anonymous = new URL(`http://headroom.test/loops/${scenario.loop.id}/history`);
+		await expect(
+			pageRoute.load({
+				url: anonymous,
+				request: new Request(anonymous),
+				params: { id: scenario.loop.id },
+				locals: { user: null, scopes: [] }
+			} as never)
+		).rejects.toMatchObject({ status: 303, location: expect.stringMatching(/^\/signin\?next=/) });
 	});
 });
