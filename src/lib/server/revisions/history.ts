@@ -6,7 +6,7 @@
  */
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { parseModelText, summarizeModel, type ModelSummary } from '../../margins';
-import type { MarginsResult } from '../../margins/types';
+import type { MarginsResult, WorstCase } from '../../margins/types';
 import type { Verdict } from '../../compliance/judge';
 import { diffRevisions } from '../../history/diff';
 import { shortSha } from '../../history/format';
@@ -77,6 +77,28 @@ function verdictsOf(r: Revision, numberOf: Map<string, number>, events: EventRow
 	return { verdict: before ? toVerdict(before, false) : null, later };
 }
 
+interface ReportRow {
+	revision_id: string;
+	engine_version: string;
+	worst_case: WorstCase;
+	case_names: string[];
+}
+
+/** Only the worst case and the case names of each report: the full results (every case, poles) stay in the database. */
+async function worstCases(
+	em: EntityManager,
+	revisionIds: string[]
+): Promise<Map<string, ReportRow>> {
+	if (!revisionIds.length) return new Map();
+	const rows = await em.getConnection().execute<ReportRow[]>(
+		`select revision_id, engine_version, result->'worstCase' as worst_case,
+		        coalesce((select jsonb_agg(c->'name') from jsonb_array_elements(result->'cases') c), '[]'::jsonb) as case_names
+		 from margin_report where revision_id in (select jsonb_array_elements_text(?::jsonb)::uuid)`,
+		[JSON.stringify(revisionIds)]
+	);
+	return new Map(rows.map((r) => [r.revision_id, r]));
+}
+
 export async function loopHistory(em: EntityManager, loopId: string): Promise<LoopHistory> {
 	const loop = await loopById(em, loopId);
 	const rows = await em.find(
@@ -84,14 +106,10 @@ export async function loopHistory(em: EntityManager, loopId: string): Promise<Lo
 		{ loop: loop.id },
 		{ populate: ['uploadedBy'], orderBy: { number: 'asc' } }
 	);
-	const reports = rows.length
-		? await em.find(
-				MarginReportSchema,
-				{ revision: { $in: rows.map((r) => r.id) } },
-				{ fields: ['revision', 'engineVersion', 'result'] }
-			)
-		: [];
-	const byRevision = new Map(reports.map((m) => [m.revision.id, m]));
+	const byRevision = await worstCases(
+		em,
+		rows.map((r) => r.id)
+	);
 	const versions = await em.find(
 		RequirementSchema,
 		{ loopClass: loop.loopClass.id },
@@ -110,7 +128,6 @@ export async function loopHistory(em: EntityManager, loopId: string): Promise<Lo
 	const numberOf = new Map(rows.map((r) => [r.id, r.number]));
 	const revisions: HistoryRevision[] = rows.map((r) => {
 		const report = byRevision.get(r.id);
-		const result = report?.result as MarginsResult | undefined;
 		const { verdict, later } = verdictsOf(r, numberOf, events);
 		const judgedAt = (r.computedAt ?? r.uploadedAt).toISOString();
 		return {
@@ -126,9 +143,9 @@ export async function loopHistory(em: EntityManager, loopId: string): Promise<Lo
 			uploadedAt: r.uploadedAt.toISOString(),
 			computedAt: r.computedAt?.toISOString() ?? null,
 			error: r.errorMessage ? { message: r.errorMessage, path: r.errorPath ?? '' } : null,
-			engineVersion: report?.engineVersion ?? null,
-			worstCase: result?.worstCase ?? null,
-			caseNames: result?.cases.map((c) => c.name) ?? [],
+			engineVersion: report?.engine_version ?? null,
+			worstCase: report?.worst_case ?? null,
+			caseNames: report?.case_names ?? [],
 			requirementVersion:
 				verdict?.requirementVersion ?? inForceAt(requirements, judgedAt)?.version ?? null,
 			verdict,
