@@ -12,7 +12,7 @@
  * times (default 3) and takes the median per model.
  */
 import { execFileSync } from 'node:child_process';
-import { mkdirSync, rmSync } from 'node:fs';
+import { cpSync, mkdirSync, rmSync } from 'node:fs';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { computeMargins, ENGINE_VERSION, parseModelText } from '../src/lib/margins/index';
@@ -86,31 +86,46 @@ const ours = loops.map((l) => {
 });
 
 type Engine = typeof import('../src/lib/margins/index');
-/** The engine at git revision `rev`, exported under node_modules (so its imports resolve). */
-async function engineAt(rev: string): Promise<Engine> {
+/**
+ * The engine at git revision `rev` (null: the working tree), copied under node_modules so its
+ * imports resolve; both sides of the A/B are loaded this way, so they differ only in their code.
+ */
+async function engineAt(rev: string | null): Promise<Engine> {
 	const root = execFileSync('git', ['rev-parse', '--show-toplevel'], { encoding: 'utf8' }).trim();
-	const dir = join(root, 'node_modules', '.bench-baseline', rev.replace(/[^\w.-]/g, '_'));
+	const dir = join(
+		root,
+		'node_modules',
+		'.bench-baseline',
+		rev?.replace(/[^\w.-]/g, '_') ?? 'worktree'
+	);
 	rmSync(dir, { recursive: true, force: true });
-	mkdirSync(dir, { recursive: true });
-	const tar = execFileSync('git', ['archive', rev, 'src/lib/margins'], { cwd: root });
-	execFileSync('tar', ['-x', '-C', dir], { input: tar });
+	mkdirSync(join(dir, 'src/lib'), { recursive: true });
+	if (rev === null)
+		cpSync(join(root, 'src/lib/margins'), join(dir, 'src/lib/margins'), { recursive: true });
+	else {
+		const tar = execFileSync('git', ['archive', rev, 'src/lib/margins'], { cwd: root });
+		execFileSync('tar', ['-x', '-C', dir], { input: tar });
+	}
 	return (await import(pathToFileURL(join(dir, 'src/lib/margins/index.ts')).href)) as Engine;
 }
 
 if (AGAINST) {
 	const base = await engineAt(AGAINST);
-	const models = loops.map((l) => parsed(toLoopModel(l)));
-	const baseModels = loops.map((l) => {
-		const r = base.parseModelText(JSON.stringify(toLoopModel(l)));
-		if (!r.ok) throw new Error('baseline refused a model');
-		return r.model;
-	});
+	const current = await engineAt(null);
+	const modelsOf = (e: Engine) =>
+		loops.map((l) => {
+			const r = e.parseModelText(JSON.stringify(toLoopModel(l)));
+			if (!r.ok) throw new Error('a model was refused');
+			return r.model;
+		});
+	const models = modelsOf(current);
+	const baseModels = modelsOf(base);
 	const now: number[][] = loops.map(() => []);
 	const then: number[][] = loops.map(() => []);
 	for (let round = 0; round < ROUNDS; round++)
 		for (let i = 0; i < loops.length; i++) {
 			// alternate which goes first, so neither always gets the warmer cache
-			const a = () => now[i].push(timeMicros(() => computeMargins(models[i])));
+			const a = () => now[i].push(timeMicros(() => current.computeMargins(models[i])));
 			const b = () => then[i].push(timeMicros(() => base.computeMargins(baseModels[i])));
 			if ((round + i) % 2) [a(), b()];
 			else [b(), a()];
