@@ -4,7 +4,17 @@
  * delayed loops timed alone, and parse time on its own. It prints; it never asserts, because
  * timings depend on the machine (targets: ≤ 100 µs per rational loop and ≥ 20× faster than Octave;
  * ≤ 1 ms for measured and delayed loops).
+ *
+ * Options (after `--`): `--no-octave` skips Octave; `--against REV` also times the engine as it
+ * was at git revision REV, in the same process, model by model interleaved with the current one
+ * (the machine's load then hits both alike), and prints both medians and their ratio;
+ * `--rational-only` skips the measured and delayed loops; `--rounds N` repeats the A/B timing N
+ * times (default 3) and takes the median per model.
  */
+import { execFileSync } from 'node:child_process';
+import { cpSync, mkdirSync, rmSync } from 'node:fs';
+import { join } from 'node:path';
+import { pathToFileURL } from 'node:url';
 import { computeMargins, ENGINE_VERSION, parseModelText } from '../src/lib/margins/index';
 import {
 	generateLoop,
@@ -14,6 +24,15 @@ import {
 	type GeneratedLoop
 } from './lib/loop-generator';
 import { octaveMargins } from './lib/octave';
+
+const args = process.argv.slice(2);
+const flag = (name: string) => args.includes(name);
+const option = (name: string) => {
+	const i = args.indexOf(name);
+	return i >= 0 ? args[i + 1] : undefined;
+};
+const AGAINST = option('--against');
+const ROUNDS = Number(option('--rounds') ?? 3);
 
 const SEED = 90_000;
 const PER_DOMAIN = 60;
@@ -65,24 +84,103 @@ const ours = loops.map((l) => {
 	const model = parsed(toLoopModel(l));
 	return timeMicros(() => computeMargins(model));
 });
+
+type Engine = typeof import('../src/lib/margins/index');
+/**
+ * The engine at git revision `rev` (null: the working tree), copied under node_modules so its
+ * imports resolve; both sides of the A/B are loaded this way, so they differ only in their code.
+ */
+async function engineAt(rev: string | null): Promise<Engine> {
+	const root = execFileSync('git', ['rev-parse', '--show-toplevel'], { encoding: 'utf8' }).trim();
+	const dir = join(
+		root,
+		'node_modules',
+		'.bench-baseline',
+		rev?.replace(/[^\w.-]/g, '_') ?? 'worktree'
+	);
+	rmSync(dir, { recursive: true, force: true });
+	mkdirSync(join(dir, 'src/lib'), { recursive: true });
+	if (rev === null)
+		cpSync(join(root, 'src/lib/margins'), join(dir, 'src/lib/margins'), { recursive: true });
+	else {
+		const tar = execFileSync('git', ['archive', rev, 'src/lib/margins'], { cwd: root });
+		execFileSync('tar', ['-x', '-C', dir], { input: tar });
+	}
+	return (await import(pathToFileURL(join(dir, 'src/lib/margins/index.ts')).href)) as Engine;
+}
+
+if (AGAINST) {
+	const base = await engineAt(AGAINST);
+	const current = await engineAt(null);
+	const modelsOf = (e: Engine) =>
+		loops.map((l) => {
+			const r = e.parseModelText(JSON.stringify(toLoopModel(l)));
+			if (!r.ok) throw new Error('a model was refused');
+			return r.model;
+		});
+	const models = modelsOf(current);
+	const baseModels = modelsOf(base);
+	const now: number[][] = loops.map(() => []);
+	const then: number[][] = loops.map(() => []);
+	for (let round = 0; round < ROUNDS; round++)
+		for (let i = 0; i < loops.length; i++) {
+			// alternate which goes first, so neither always gets the warmer cache
+			const a = () => now[i].push(timeMicros(() => current.computeMargins(models[i])));
+			const b = () => then[i].push(timeMicros(() => base.computeMargins(baseModels[i])));
+			if ((round + i) % 2) [a(), b()];
+			else [b(), a()];
+		}
+	const nowM = now.map(median);
+	const thenM = then.map(median);
+	console.log(
+		`\nA/B in one process (${ROUNDS} interleaved rounds): ${AGAINST} against the working tree`
+	);
+	console.log('domain       orders   then µs    now µs   speed-up');
+	for (const domain of ['continuous', 'z'] as const)
+		for (const [lo, hi] of [
+			[1, 6],
+			[7, 10]
+		]) {
+			const idx = loops
+				.map((l, i) => (l.domain === domain && l.order >= lo && l.order <= hi ? i : -1))
+				.filter((i) => i >= 0);
+			const a = median(idx.map((i) => thenM[i]));
+			const b = median(idx.map((i) => nowM[i]));
+			console.log(
+				`${domain.padEnd(10)} ${`${lo}–${hi}`.padStart(8)} ${fmt(a)} ${fmt(b)} ${ratio(a, b)}`
+			);
+		}
+	const a = median(thenM);
+	const b = median(nowM);
+	console.log(
+		`overall median: then ${a.toFixed(1)} µs, now ${b.toFixed(1)} µs, ${(a / b).toFixed(2)}× `
+	);
+	ours.splice(0, ours.length, ...nowM);
+}
 const parse = loops.map((l) => {
 	const text = JSON.stringify(toLoopModel(l));
 	return timeMicros(() => parseModelText(text));
 });
 
 let octave: number[] = loops.map(() => NaN);
-let octaveNote: string;
-try {
-	const t0 = Date.now();
-	const res = octaveMargins(
-		loops.map((l, id) => ({ id, num: l.num, den: l.den, sampleTimeSeconds: l.sampleTimeSeconds })),
-		{ repeats: OCTAVE_REPEATS }
-	);
-	octave = res.map((r) => (r.medianSeconds ?? NaN) * 1e6);
-	octaveNote = `Octave margin(): median of ${OCTAVE_REPEATS} tic/toc calls per model inside one octave-cli run (${((Date.now() - t0) / 1000).toFixed(1)} s)`;
-} catch (e) {
-	octaveNote = `Octave not timed: ${(e as Error).message}`;
-}
+let octaveNote = 'Octave not timed (--no-octave)';
+if (!flag('--no-octave'))
+	try {
+		const t0 = Date.now();
+		const res = octaveMargins(
+			loops.map((l, id) => ({
+				id,
+				num: l.num,
+				den: l.den,
+				sampleTimeSeconds: l.sampleTimeSeconds
+			})),
+			{ repeats: OCTAVE_REPEATS }
+		);
+		octave = res.map((r) => (r.medianSeconds ?? NaN) * 1e6);
+		octaveNote = `Octave margin(): median of ${OCTAVE_REPEATS} tic/toc calls per model inside one octave-cli run (${((Date.now() - t0) / 1000).toFixed(1)} s)`;
+	} catch (e) {
+		octaveNote = `Octave not timed: ${(e as Error).message}`;
+	}
 
 console.log(`\n${octaveNote}\nper-model median µs, then the median over the models of each row\n`);
 console.log('order  domain       n   ours µs  Octave µs   faster');
@@ -110,6 +208,7 @@ console.log(
 );
 
 // measured and delayed loops are not something Octave's margin() takes: timed alone
+if (flag('--rational-only')) process.exit(0);
 const extra = Array.from({ length: 20 }, (_, i) =>
 	generateLoop(SEED + 5000 + i, { domain: 'continuous', order: 1 + (i % 10) })
 );

@@ -66,7 +66,6 @@ const KNOWN: Record<string, Reason> = {
 	'20197:gm': 'octave-miss',
 	'20197:pm': 'octave-miss',
 	'20200:pm': 'octave-miss',
-	'20202:pm': 'octave-miss',
 	'20203:pm': 'octave-miss',
 	'20205:pm': 'octave-miss',
 	'20208:pm': 'octave-miss',
@@ -78,7 +77,11 @@ const KNOWN: Record<string, Reason> = {
 	'20233:pm': 'octave-miss',
 	'20238:pm': 'octave-miss',
 	'20239:pm': 'octave-miss',
-	'20059:pm': 'octave-inaccurate-root' // zoh, order 10: PM 71.4368° at 0.19431982 rad/s, where |L| − 1 = -8.4e-07
+	// zoh, order 10: |L| = 1 to 2e-14 at 0.1943196 rad/s (PM 71.4369°). An earlier install of the same
+	// Octave 7.3.0 / control 3.4.0 answered there with |L| − 1 = −8.4e-7 (octave-inaccurate-root); the
+	// one on this machine since 2026-12-02 finds no gain crossover at all, and finds 20202's, which it
+	// missed before: its √eps keep-rule sits at the edge for both loops
+	'20059:pm': 'octave-miss'
 };
 
 const loops = octaveLoops();

@@ -17,7 +17,8 @@ import { makeSubject, relativeDegree, subjects, type Subject } from './lib/subje
 import { nyquistUnstable } from './lib/dense';
 import { crossingTolerance, referenceMargins } from './lib/truth';
 import { characteristic, schurUnstable } from './lib/stability';
-import { zohTransfer } from './lib/zoh';
+import { zohEvaluator, zohTransfer } from './lib/zoh';
+import { preciseZoh } from './lib/precise';
 
 const COUNT = 500;
 const angleDiff = (a: number, b: number) => ((((a - b) % 360) + 540) % 360) - 180;
@@ -58,20 +59,6 @@ function delayedSubjects(): Subject[] {
 	});
 }
 
-/**
- * Engine defects still open (issue 4 stays open until this list is empty). Each check here is
- * run and expected to FAIL: the day the engine is fixed it turns red, and its line goes. Found
- * by this suite at the commit that added the list (see the issue note for the loops involved):
- * sampled loops with stability counted on the wrong side of |z| = 1 when poles crowd the unit
- * circle, and zero-order-hold discretisation at very fast sampling losing the gain crossover.
- */
-const KNOWN_DEFECTS = new Set([
-	'sampled, z-domain / 500 loops: crossovers, margins, stability and sensitivity against direct evaluation',
-	'sampled, ZOH-discretised s-domain block / 500 loops: crossovers, margins, stability and sensitivity against direct evaluation',
-	'ZOH at 1000× / stays within a fraction of a degree / dB of the continuous loop'
-]);
-const known = (kind: string, name: string) => (KNOWN_DEFECTS.has(`${kind} / ${name}`) ? it.fails : it);
-
 const kinds: [string, () => Subject[], boolean][] = [
 	['continuous rational', () => subjects('continuous', COUNT).map((l) => makeSubject(l)), false],
 	['sampled, z-domain', () => subjects('z', COUNT).map((l) => makeSubject(l)), true],
@@ -88,7 +75,7 @@ describe.each(kinds)('%s loops', (kind, build, sampled) => {
 	const all = () => (list.length ? list : (list = build()));
 
 	const full = `${COUNT} loops: crossovers, margins, stability and sensitivity against direct evaluation`;
-	known(kind, full)(full, () => {
+	it(full, () => {
 		const f = new Findings();
 		let stable = 0;
 		for (const s of all()) if (fullCheck(f, s).stable) stable++;
@@ -208,23 +195,82 @@ describe.each(kinds)('%s loops', (kind, build, sampled) => {
 	});
 });
 
+/**
+ * The rule of thumb (CHECK-VALUES.md) is that a hold 1000× faster than the crossover barely
+ * changes a loop. It is not a law: three of these loops break it, and the hold really changes them
+ * — settled by a third computation, the exact ZOH discretisation in 80 digits (mpmath: partial
+ * fractions of the step response, and expm of [[A, B], [0, 0]]·T of a cascade realisation, which
+ * agree to 17 digits), evaluated at the disputed frequencies:
+ * - seed 600081, 150.8·(s² + 0.056s + 0.141)/(s² + 4.96s + 242): biproper, |L| = 1 at the crossover
+ *   only as a 150-fold cancellation against the feedthrough 150.8, so the hold's ωT/2 ≈ 0.003
+ *   relative change becomes ~0.45 absolute: the held |L| at the continuous crossover (0.2095 Hz)
+ *   is 1.1387, and its crossover is at 0.19591 Hz with PM −30.80° (the engine: −30.798°), not −4.4°.
+ * - seed 600114 (order 5, biproper): the continuous |L| dips just below 1 between 9.0 and 11.3 Hz;
+ *   the held |L| stays at 1.006–1.019 there (a dense 80-digit scan finds one crossover, 4.2475 Hz,
+ *   as the engine does), so two of the three continuous gain crossovers are gone.
+ * - seed 600302 (relative degree 2): the phase approaches −180° so flatly that the hold's 0.18° of
+ *   lag moves the phase crossover from 0.256 Hz to 0.20542 Hz, where the held L is −0.0317112675
+ *   (real to 1e-15): upper GM 29.9757 dB (the engine's), not 33.90 dB.
+ * Whether the rule can hold is decided here without the engine: at every continuous crossover the
+ * reference's own held response (zoh.ts, or precise.ts where zoh.ts is not good) gives the hold's
+ * actual change of L beyond its half-sample lag, and the slopes of the continuous L turn that into
+ * the predicted move of the crossing and of its margin. Where that prediction exceeds the
+ * tolerance, or half of it while moving the crossing by more than 5 % (a near-tangency, where the
+ * first-order prediction itself is poor), the loop is exempt from the rule — and its held
+ * crossovers are instead checked against the held response in 60 digits. Exempt loops must stay
+ * rare: 5 of ~480 at this commit, the three above and 600230 (order 1, a crossover on a flat
+ * magnitude: predicted PM change 7°) and 600414 (a phase crossover at 4429 rad/s on a flat phase:
+ * predicted GM change 0.74 dB).
+ */
 describe('ZOH discretisation at 1000× the crossover', () => {
-	const name = 'stays within a fraction of a degree / dB of the continuous loop';
-	known('ZOH at 1000×', name)(name, () => {
+	it('stays within a fraction of a degree / dB of the continuous loop', () => {
 		const f = new Findings();
 		let compared = 0;
+		const exempt: string[] = [];
 		for (const loop of subjects('continuous', COUNT, 600_000)) {
 			// the continuous truth comes from the reference, not from the engine
-			const truth = referenceMargins(makeSubject(loop));
+			const cont = makeSubject(loop);
+			const truth = referenceMargins(cont);
 			const fmax = Math.max(...[...truth.gain, ...truth.phase].map((x) => x.w / TWO_PI));
 			if (!truth.stable || !(fmax > 0)) continue;
 			compared++;
 			const T = 1 / (1000 * fmax);
 			// roots, not an expanded polynomial: the test is about the hold, not about coefficient rounding
-			const zoh = caseOf(
-				toLoopModel({ ...loop, domain: 'zoh', representation: 'factored', sampleTimeSeconds: T })
-			);
+			const held = {
+				...loop,
+				domain: 'zoh',
+				representation: 'factored',
+				sampleTimeSeconds: T
+			} as const;
+			const zoh = caseOf(toLoopModel(held));
 			const label = `continuous seed ${loop.seed} order ${loop.order}, ZOH T=${T}`;
+			const move = holdEffect(cont.t.L, held, [
+				...truth.gain.map((g) => ({ w: g.w, what: 'gain' as const })),
+				...truth.phase.map((p) => ({ w: p.w, what: 'phase' as const }))
+			]);
+			if (
+				move.some(
+					(m) => Math.abs(m.value) > 0.5 || (Math.abs(m.value) > 0.25 && Math.abs(m.lnW) > 0.05)
+				)
+			) {
+				exempt.push(`${label}: ${JSON.stringify(move)}`);
+				const precise = preciseZoh(held);
+				for (const g of zoh.gainCrossovers) {
+					const l = precise(g.hz * TWO_PI);
+					f.near(label, `|L| at the held gain crossover ${g.hz} Hz`, Math.hypot(...l), 1, 1e-6);
+				}
+				for (const p of zoh.phaseCrossovers) {
+					const l = precise(p.hz * TWO_PI);
+					f.near(
+						label,
+						`GM at the held phase crossover ${p.hz} Hz`,
+						p.gainMarginDb,
+						-20 * Math.log10(Math.hypot(...l)),
+						1e-6
+					);
+				}
+				continue;
+			}
 			f.ok(label, zoh.stable, () => 'ZOH loop unstable');
 			f.ok(
 				label,
@@ -244,8 +290,50 @@ describe('ZOH discretisation at 1000× the crossover', () => {
 		}
 		f.assertNone();
 		expect(compared).toBeGreaterThan(COUNT * 0.4);
+		// 5 of ~480 at this commit (above)
+		expect(exempt.length, exempt.join('\n')).toBeLessThanOrEqual(COUNT * 0.02);
 	});
 });
+
+/**
+ * First-order effect of the hold at each continuous crossover: with the held L = L·e^{−jωT/2}·e^{d}
+ * (d from the reference's held response), a gain crossover moves by −Re d / (d ln|L| / d ln ω) in
+ * ln ω and its PM by the phase change there; a phase crossover moves by −(Im d − ωT/2)/(d∠L / d ln ω)
+ * and its GM by the magnitude change. Degrees or dB in `value`.
+ */
+function holdEffect(
+	L: (w: number) => [number, number],
+	held: GeneratedLoop,
+	at: { w: number; what: 'gain' | 'phase' }[]
+) {
+	const T = held.sampleTimeSeconds!;
+	const evaluate = zohEvaluator(held);
+	const precise = preciseZoh(held);
+	const lnL = (w: number): [number, number] => {
+		const [re, im] = L(w);
+		return [Math.log(Math.hypot(re, im)), Math.atan2(im, re)];
+	};
+	const wrap = (x: number) => x - 2 * Math.PI * Math.round(x / (2 * Math.PI));
+	return at.map(({ w, what }) => {
+		const h = 1e-5;
+		const [m1, p1] = lnL(w * (1 + h));
+		const [m0, p0] = lnL(w * (1 - h));
+		const sm = (m1 - m0) / (2 * h);
+		const sp = wrap(p1 - p0) / (2 * h);
+		const [zl, bound] = evaluate(w);
+		const [zr, zi] = bound < 1e-9 ? zl : precise(w);
+		const [cm, cp] = lnL(w);
+		const dm = Math.log(Math.hypot(zr, zi)) - cm;
+		const dp = wrap(Math.atan2(zi, zr) - cp + (w * T) / 2);
+		const lag = (w * T) / 2;
+		if (what === 'gain') {
+			const lnW = -dm / sm;
+			return { what, w, lnW, value: ((dp - lag + sp * lnW) * 180) / Math.PI };
+		}
+		const lnW = -(dp - lag) / sp;
+		return { what, w, lnW, value: (-20 / Math.LN10) * (dm + sm * lnW) };
+	});
+}
 
 describe('measured loops (a rational loop sampled at 500 frequencies)', () => {
 	it('match the rational loop within interpolation error', () => {

@@ -1,10 +1,14 @@
 /**
  * The stable gain interval (k_low, k_high) ∋ 1. The closed loop can only change stability where
  * 1 + k·L has a root on the boundary, i.e. at k = 1/|L| of a phase crossover (ω = 0 and the
- * Nyquist or infinite frequency included). Walking outwards from k = 1, each interval between
- * consecutive candidates is tested once; the first candidate beyond which the loop is unstable
- * bounds the interval. A candidate at which the loop only touches the boundary and stays stable
- * on both sides (a tangent phase crossover) does not bound it.
+ * Nyquist or infinite frequency included) — and at every such k it HAS a root on the boundary:
+ * L(jω) real and negative there makes 1 + k·L(jω) = 0, a closed-loop pole on the imaginary axis
+ * (or the unit circle; for the candidate at ω → ∞, a pole through infinity), which the
+ * definition counts as unstable. So the nearest candidate on each side bounds the interval,
+ * whatever the loop does beyond it: a phase curve that only touches −180° (a tangent phase
+ * crossover, stable on both sides of its gain) bounds it too, at the one gain where the loop sits
+ * on the edge. (Up to an earlier version it did not: only a candidate beyond which a root count
+ * said "unstable" did, which leaves that edge gain inside the "stable" interval.)
  */
 
 export interface GainCandidate {
@@ -30,25 +34,12 @@ export function gainCandidates(
 	return out.sort((a, b) => a.k - b.k);
 }
 
-export function gainInterval(
-	candidates: GainCandidate[],
-	stableAt: (k: number) => boolean
-): GainInterval {
-	const above = candidates.filter((c) => c.k > 1);
-	const below = candidates.filter((c) => c.k < 1).reverse();
+export function gainInterval(candidates: GainCandidate[]): GainInterval {
 	let high: GainCandidate | null = null;
-	for (let i = 0; i < above.length && !high; i++) {
-		const next = above[i + 1];
-		const probe = next ? Math.sqrt(above[i].k * next.k) : 2 * above[i].k;
-		if (next && next.k <= above[i].k * (1 + 1e-12)) continue;
-		if (!stableAt(probe)) high = above[i];
-	}
 	let low: GainCandidate | null = null;
-	for (let i = 0; i < below.length && !low; i++) {
-		const next = below[i + 1];
-		const probe = next ? Math.sqrt(below[i].k * next.k) : 0.5 * below[i].k;
-		if (next && next.k >= below[i].k * (1 - 1e-12)) continue;
-		if (!stableAt(probe)) low = below[i];
+	for (const c of candidates) {
+		if (c.k > 1 && (high === null || c.k < high.k)) high = c;
+		if (c.k < 1 && (low === null || c.k > low.k)) low = c;
 	}
 	return { high, low };
 }

@@ -19,10 +19,8 @@ import { ContinuousEval, type LoopEval } from './rational-eval';
 import { loopRoots } from './response';
 import { loopForms } from './sampled-forms';
 import { SampledEval } from './sampled-eval';
-import { routhUnstable, schurUnstable } from './routh';
 import { sensitivity, type EndPoint, type GridValues } from './sensitivity';
 import { continuousClosedLoop, sampledClosedLoop, type ClosedLoop } from './stability';
-import { add, scale } from './polynomial';
 
 const PER_DECADE = 12;
 
@@ -30,16 +28,12 @@ export function rationalAnalysis(loop: CaseLoop): CaseAnalysis {
 	let ev: LoopEval;
 	let cross: RationalCrossings;
 	let closed: (k: number) => ClosedLoop;
-	/** Unstable-pole count at gain k without roots, or null when that count is ill conditioned. */
-	let count: (k: number) => number | null;
 	let lInf = 0;
 	if (loop.T === null) {
 		const c = new ContinuousEval(loop.num, loop.den, loop.gain);
-		const [num, den] = [Array.from(c.num), Array.from(c.den)];
 		ev = c;
 		cross = continuousCrossings(c);
 		closed = (k) => continuousClosedLoop(c, k);
-		count = (k) => routhUnstable(add(den, scale(num, k * c.gain)));
 		lInf = c.atInfinity();
 	} else {
 		const { zeros, poles } = loopRoots(loop);
@@ -49,7 +43,6 @@ export function rationalAnalysis(loop: CaseLoop): CaseAnalysis {
 		const w = forms.w;
 		cross = sampledCrossings(ev, forms);
 		closed = (k) => sampledClosedLoop(w.num, w.den, k * w.gain);
-		count = (k) => schurUnstable(add(w.den, scale(w.num, k * w.gain)));
 	}
 	const cl = closed(1);
 	const grid = sensitivityGrid(
@@ -66,9 +59,7 @@ export function rationalAnalysis(loop: CaseLoop): CaseAnalysis {
 	if (!ev.sampled) ends.push({ f: Infinity, re: lInf, im: 0 });
 	const sens = sensitivity(ev, grid, ends, values);
 	const extra: GainCandidate[] = lInf < 0 ? [{ k: -1 / lInf, f: Infinity }] : [];
-	const stableAt = (k: number) => (count(k) ?? closed(k).unstable) === 0;
-	const interval =
-		cl.unstable === 0 ? gainInterval(gainCandidates(cross.phase, extra), stableAt) : null;
+	const interval = cl.unstable === 0 ? gainInterval(gainCandidates(cross.phase, extra)) : null;
 	return {
 		name: loop.name,
 		T: loop.T,

@@ -132,7 +132,7 @@ function nyquistCount(
 
 function walk(count: NyquistCount, phase: PhaseCrossing[]) {
 	const extra: GainCandidate[] = count.neutral > 0 ? [{ k: 1 / count.neutral, f: Infinity }] : [];
-	return gainInterval(gainCandidates(phase, extra), (k) => unstableCount(count, k) === 0);
+	return gainInterval(gainCandidates(phase, extra));
 }
 
 function withFull(resp: LoopResponse, f: number): Crossing {

@@ -15,6 +15,7 @@ import { characteristic, routhUnstable } from './stability';
 import { grid, nyquistUnstable, type Response } from './dense';
 import { generatedResponse } from './response';
 import { zohEvaluator } from './zoh';
+import { preciseUnstableZ, preciseZoh } from './precise';
 import type { LoopUnderTest } from './checks';
 
 export interface Subject {
@@ -84,6 +85,7 @@ export function makeSubject(loop: GeneratedLoop, delaySeconds = 0): Subject {
 		finiteAtZero: ints === 0,
 		phaseFloor: delaySeconds > 0 && !T ? PHASE_FLOOR : undefined,
 		trusted: bound && ((w) => bound(w)[1] < 1e-9),
+		precise: loop.domain === 'zoh' ? preciseZoh(loop) : undefined,
 		zeroAt: (w) => {
 			const x: [number, number] =
 				loop.domain === 'z' ? [Math.cos(w * T!), Math.sin(w * T!)] : [0, w];
@@ -96,7 +98,19 @@ export function makeSubject(loop: GeneratedLoop, delaySeconds = 0): Subject {
 		}
 	};
 	let unstableAt: (k: number) => number | null;
-	if (T || delaySeconds > 0) {
+	if (loop.domain === 'z' && loop.representation === 'polynomial' && delaySeconds === 0) {
+		// The file's own coefficients, counted exactly (precise.ts). A double integrator written out
+		// in z-coefficients is split by their rounding into a pair ~1e-7 off z = 1 (seed 200273:
+		// 1 + 2.9e-13 ± 2.99e-7j, just outside the circle): L of the file is then finite at z = 1,
+		// resonant at θ ≈ 3e-7 and crosses −180° at θ ≈ 1e-6 — all below the first grid point
+		// (θ = π·1e-6), so a Nyquist count from the grid with two ideal integrators went wrong
+		// whenever |k·L| there is not ≫ 1 (k ~ 1e-9). 80-digit roots (mpmath) of den + k·num
+		// agree with this count and with the engine: the pair crosses |z| = 1 at
+		// k = 1/|L(θ_pc)| = 1.0355718e-9 (the engine's lower margin, −179.696395 dB).
+		const fileNum = loop.num.map((c) => c * loop.coefficientScale);
+		const fileDen = loop.den.map((c) => c * loop.coefficientScale);
+		unstableAt = (k) => preciseUnstableZ(fileNum, fileDen, k);
+	} else if (T || delaySeconds > 0) {
 		// Nyquist count on the accurate response: for a sampled loop over 0 < ω ≤ π/T (the same
 		// formula, the unit circle taking the place of the imaginary axis). The expanded z-polynomial
 		// a Schur test would need loses its digits when the roots crowd near z = 1.

@@ -104,6 +104,42 @@ describe('continuous edge cases', () => {
 		near(c.gainCrossovers[0].phaseMarginDeg, 180, 1e-6);
 	});
 
+	it('a phase curve only touching −180° bounds the gain interval at the edge gain [form]', () => {
+		// ∠L = 2·atan(ω/a) − 90° − 2·atan ω for L = K(s + a)²/(s(s + 1)²) has its minimum at ω = √a,
+		// and that minimum is exactly −180° for atan √a = 67.5°: a = (1 + √2)², ω = 1 + √2. K puts
+		// the touching point at k = 2: there 1 + 2L(jω) = 0, a closed-loop pole on the axis, so the
+		// loop is not stable at k = 2 although it is on both sides of it (definition: every k in
+		// (k_low, k_high) stable). Rounding of a makes the curve cross twice, touch or miss by
+		// ~1e-12 relative; each must give the bound at 6.0206 dB, none "unbounded".
+		const w = 1 + Math.SQRT2;
+		const a0 = w * w;
+		const K = (w * (1 + w * w)) / (2 * (a0 * a0 + w * w));
+		for (const a of [a0, a0 * (1 + 1e-12), a0 * (1 - 1e-12)]) {
+			const c = caseOf(loop([K, 2 * K * a, K * a * a], [1, 2, 1, 0]));
+			expect(c.stable).toBe(true);
+			near(c.upperGainMarginDb, dB(2), 1e-4);
+			nearRel(rad(c.upperGainMarginHz), w, 1e-5);
+			expect(c.lowerGainMarginDb).toBeNull();
+			// the loop is stable on both sides of the edge gain: it is the touching point that bounds
+			expect(
+				caseOf(
+					loop(
+						[K, 2 * K * a, K * a * a].map((x) => x * 1.999),
+						[1, 2, 1, 0]
+					)
+				).stable
+			).toBe(true);
+			expect(
+				caseOf(
+					loop(
+						[K, 2 * K * a, K * a * a].map((x) => x * 2.001),
+						[1, 2, 1, 0]
+					)
+				).stable
+			).toBe(true);
+		}
+	});
+
 	it('characteristic polynomials of the xⁿ + c family: 1/(s⁴ + 16) closes onto s⁴ = −17', () => {
 		const c = caseOf(loop([1], [1, 0, 0, 0, 16]));
 		expect(c.unstablePoles).toBe(2);
