@@ -26,7 +26,9 @@ export function s3(): S3Client {
 			// S3-compatible stores (and the local fake) store verbatim inside the object.
 			requestChecksumCalculation: 'WHEN_REQUIRED',
 			responseChecksumValidation: 'WHEN_REQUIRED',
-			maxAttempts: 3
+			maxAttempts: 3,
+			// A store that accepts connections but never answers must not hang requests for ever.
+			requestHandler: { connectionTimeout: 5_000, requestTimeout: 20_000 }
 		});
 	}
 	return client;
