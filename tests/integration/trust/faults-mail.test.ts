@@ -96,13 +96,12 @@ describe('the SMTP server down when a verdict gets worse', () => {
 		);
 		expect(event.notified_at).toBeNull();
 		const job = await until('the mail job to fail and wait for its retry', async () => {
-			const [row] = await sql<{ id: string; state: string; retry_count: number; output: unknown }>(
-				`select id, state, retry_count, output from pgboss.job where name = ? and data->>'eventId' = ? order by created_on desc limit 1`,
+			const [row] = await sql<{ id: string; state: string; output: unknown }>(
+				`select id, state, output from pgboss.job where name = ? and data->>'eventId' = ? order by created_on desc limit 1`,
 				[QUEUES.notifyVerdict, event.id]
 			);
 			return row?.state === 'retry' ? row : undefined;
 		}, 60_000, () => worker.log());
-		expect(job.retry_count).toBeGreaterThanOrEqual(1);
 		expect(JSON.stringify(job.output)).toMatch(/ECONNREFUSED|connect/i);
 		expect(received).toHaveLength(0);
 		// Still noncompliant and still waiting to be told: nothing was lost or rolled back.
