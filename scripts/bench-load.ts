@@ -11,7 +11,7 @@
  */
 import { spawn } from 'node:child_process';
 import { chmodSync, mkdtempSync, rmSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { cpus, loadavg, tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { appEnv, appProcess, override } from './lib/app';
 import { buildIfStale } from './lib/build';
@@ -38,7 +38,7 @@ async function signInCookie(origin: string): Promise<string> {
 	const body = new URLSearchParams({ email: 'engineer@headroom.test', password: 'headroom-demo', next: '/' });
 	const response = await fetch(`${origin}/signin?/password`, {
 		method: 'POST',
-		headers: { origin, 'content-type': 'application/x-www-form-urlencoded' },
+		headers: { origin, 'content-type': 'application/x-www-form-urlencoded', accept: 'text/html' },
 		body,
 		redirect: 'manual'
 	});
@@ -108,9 +108,17 @@ async function main(): Promise<boolean> {
 	const web = supervisor.start(appProcess(root, 'web', env));
 	await waitForHttp('the web server', `${env.ORIGIN}/api/health`, { child: web, timeoutMs: 90_000 });
 	const cookie = await signInCookie(env.ORIGIN!);
+	// Let the worker finish the demo models first, so it does not compete with the measured run.
+	for (let i = 0; i < 240; i++) {
+		const [{ n }] = await query(`select count(*)::int as n from revision where state in ('queued', 'computing')`);
+		if (Number(n) === 0) break;
+		await new Promise((r) => setTimeout(r, 500));
+	}
 	const [{ n: revisionsBefore }] = await query('select count(*)::int as n from revision');
 
-	console.log(`\nload: ${loopCount} loops, ${SECONDS} s, ${CONNECTIONS} connections per kind, driven from a second process on loopback\n`);
+	const load = loadavg().map((x) => x.toFixed(1)).join(' ');
+	console.log(`\nload: ${loopCount} loops, ${SECONDS} s, ${CONNECTIONS} connections per kind, driven from a second process on loopback`);
+	console.log(`machine: ${cpus().length} CPU cores, load average ${load} before the run (other work on the machine skews every figure)\n`);
 	const results = await drive({
 		base: env.ORIGIN!,
 		seconds: SECONDS,
