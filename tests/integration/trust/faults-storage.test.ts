@@ -38,15 +38,17 @@ const revisionRows = () =>
 		[loopId]
 	);
 
+/** Store calls give up after 5 s here (30 s by default), so a hung store is seen quickly. */
+const S3_TIMEOUT_MS = '5000';
 async function workerEnv() {
-	return { S3_ENDPOINT: store.endpoint };
+	return { S3_ENDPOINT: store.endpoint, S3_TIMEOUT_MS };
 }
 
 beforeAll(async () => {
 	store = await startPrivateS3(dir, testEnv.s3.bucket);
 	// This file's own process (seed, reconcile, checks) talks to the private store as well.
 	process.env.S3_ENDPOINT = store.endpoint;
-	app = await startBuiltApp({ prefix: 'trust_s3', seed: true, env: { ...trustAppEnv, S3_ENDPOINT: store.endpoint } });
+	app = await startBuiltApp({ prefix: 'trust_s3', seed: true, env: { ...trustAppEnv, S3_ENDPOINT: store.endpoint, S3_TIMEOUT_MS } });
 	worker = await startWorker(app.db.url, await workerEnv());
 	[{ id: loopId }] = await sql<{ id: string }>(
 		`select l.id from loop l join app_user u on u.id = l.owner_id where u.email = 'engineer@headroom.test' and l.archived_at is null order by l.key limit 1`
@@ -92,6 +94,26 @@ describe('the object store down', () => {
 			await store.start();
 		}
 		const after = await apiUpload(app.url, loopId, TOKEN, model(1.2), 'after-restart.json');
+		expect(after.status, after.body).toBe(202);
+		expect(await consistency()).toEqual({ rowsWithoutObject: [], objectsWithoutRow: [] });
+	});
+
+	it('hung (accepts connections, never answers): the upload still answers 503 in words, in bounded time', async () => {
+		const before = (await revisionRows()).length;
+		store.pause();
+		try {
+			const response = await apiUpload(app.url, loopId, TOKEN, model(1.15), 'while-hung.json');
+			expect(response.hung, 'the upload hung').toBe(false);
+			expect(response.status, response.body).toBe(503);
+			expect(response.json.error?.message).toMatch(/object store is unavailable/i);
+			const health = await boxedFetch(`${app.url}/api/health`);
+			expect(health.hung).toBe(false);
+			expect(health.status).toBe(503);
+		} finally {
+			store.resume();
+		}
+		expect((await revisionRows()).length).toBe(before);
+		const after = await apiUpload(app.url, loopId, TOKEN, model(1.16), 'after-hang.json');
 		expect(after.status, after.body).toBe(202);
 		expect(await consistency()).toEqual({ rowsWithoutObject: [], objectsWithoutRow: [] });
 	});

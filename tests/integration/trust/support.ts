@@ -156,6 +156,9 @@ export interface PrivateS3 {
 	stop(): Promise<void>;
 	/** Starts it again on the same port over the same files. */
 	start(): Promise<void>;
+	/** SIGSTOP / SIGCONT: a store that still accepts connections but never answers. */
+	pause(): void;
+	resume(): void;
 	running(): boolean;
 }
 
@@ -187,6 +190,8 @@ export async function startPrivateS3(dir: string, bucket = 'headroom'): Promise<
 			await exited;
 		},
 		start,
+		pause: () => child?.kill('SIGSTOP'),
+		resume: () => child?.kill('SIGCONT'),
 		running: () => !!child && child.exitCode === null && child.signalCode === null
 	};
 }
