@@ -131,10 +131,12 @@ describe('the object store down', () => {
 		expect(statuses.every((s) => s === 202 || s === 503), statuses.join(',')).toBe(true);
 		for (const a of answers.filter((x) => x.status === 503)) expect(a.json.error?.message).toMatch(/unavailable/i);
 		const accepted = answers.filter((a) => a.status === 202).length;
+		console.info(`[trust] burst: ${accepted} of ${answers.length} uploads accepted, ${answers.length - accepted} answered 503`);
 		expect((await revisionRows()).length).toBe(before + accepted);
 
 		let check = await consistency();
 		expect(check.rowsWithoutObject, 'revision rows whose object is missing').toEqual([]);
+		console.info(`[trust] burst: ${check.objectsWithoutRow.length} object(s) without a row before the reconcile pass`);
 		if (check.objectsWithoutRow.length) {
 			// Stored just before its row failed: the reconcile pass removes it once it is old.
 			const report = await reconcileStorage(app.orm.em.fork(), new Date(Date.now() + 2 * 3600_000));
