@@ -121,8 +121,10 @@ describe('the object store down', () => {
 	it('killed in the middle of a burst of uploads: every request answered, rows and objects agree', async () => {
 		const before = (await revisionRows()).length;
 		// Big enough (~1 MB each) that the store is killed while some are still being written.
-		const uploads = Array.from({ length: 10 }, (_, i) => apiUpload(app.url, loopId, TOKEN, model(1.3 + i / 100, 1_000_000), `burst-${i}.json`));
-		await new Promise((r) => setTimeout(r, 300));
+		const uploads = Array.from({ length: 16 }, (_, i) => apiUpload(app.url, loopId, TOKEN, model(1.3 + i / 100, 1_000_000), `burst-${i}.json`));
+		// Kill the store as soon as the first of them has been stored and recorded: the others are
+		// then somewhere between the request, the store and the database.
+		await until('the first upload of the burst to be recorded', async () => ((await revisionRows()).length > before ? true : undefined), 60_000);
 		await store.stop();
 		const answers = await Promise.all(uploads);
 		await store.start();
