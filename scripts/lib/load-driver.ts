@@ -29,6 +29,8 @@ export interface KindResult {
 	timeouts: number;
 	non2xx: number;
 	statusCodes: Record<string, number>;
+	/** Uploads only: the revision ids of the uploads answered 202. */
+	acceptedIds?: string[];
 }
 
 const VERDICTS = ['compliant', 'noncompliant', 'unstable', 'covered', 'pending', 'empty', 'rejected'];
@@ -36,6 +38,7 @@ const pick = <T>(xs: T[]) => xs[Math.floor(Math.random() * xs.length)];
 const BOUNDARY = '----headroom-load';
 
 let uploadCounter = 0;
+const acceptedIds: string[] = [];
 function uploadBody(): string {
 	// Every upload different (the registry refuses an identical file twice).
 	const n = ++uploadCounter;
@@ -61,7 +64,10 @@ function requestsFor(kind: Kind, plan: LoadPlan): Request[] {
 				{
 					method: 'POST',
 					headers: { ...bearer, 'content-type': `multipart/form-data; boundary=${BOUNDARY}` },
-					setupRequest: (r) => ({ ...r, path: `/api/loops/${pick(plan.uploadLoopIds)}/revisions`, body: uploadBody() })
+					setupRequest: (r) => ({ ...r, path: `/api/loops/${pick(plan.uploadLoopIds)}/revisions`, body: uploadBody() }),
+					onResponse: (status, body) => {
+						if (status === 202) acceptedIds.push((JSON.parse(body) as { revision: { id: string } }).revision.id);
+					}
 				}
 			];
 	}
@@ -91,7 +97,8 @@ function runKind(kind: Kind, plan: LoadPlan): Promise<KindResult> {
 					errors: result.errors,
 					timeouts: result.timeouts,
 					non2xx: result.non2xx,
-					statusCodes
+					statusCodes,
+					acceptedIds: kind === 'upload' ? acceptedIds : undefined
 				});
 			}
 		);
