@@ -4,6 +4,8 @@ import { building } from '$app/environment';
 import { handleRequestId } from '$lib/server/hooks/request-id';
 import { handleSecurityHeaders } from '$lib/server/hooks/security-headers';
 import { handleAuth } from '$lib/server/hooks/auth';
+import { handleCsrf } from '$lib/server/hooks/csrf';
+import { handleOutage } from '$lib/server/hooks/outage';
 import { authSecret, oidcSettings } from '$lib/server/config';
 import { closeOrm } from '$lib/server/db/orm';
 import { stopBoss } from '$lib/server/jobs/boss';
@@ -17,7 +19,7 @@ export const init: ServerInit = async () => {
 	oidcSettings();
 };
 
-export const handle = sequence(handleRequestId, handleSecurityHeaders, handleAuth);
+export const handle = sequence(handleRequestId, handleSecurityHeaders, handleOutage, handleCsrf, handleAuth);
 
 if (!building) {
 	// adapter-node emits this on SIGINT/SIGTERM once requests have drained; without closing the

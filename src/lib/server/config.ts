@@ -21,6 +21,8 @@ export interface S3Settings {
 	accessKeyId: string;
 	secretAccessKey: string;
 	forcePathStyle: boolean;
+	/** Longest one store call may take, retries included (S3_TIMEOUT_MS, default 30 s). */
+	timeoutMs: number;
 }
 
 export function s3Settings(): S3Settings {
@@ -31,7 +33,8 @@ export function s3Settings(): S3Settings {
 		accessKeyId: required('S3_ACCESS_KEY_ID'),
 		secretAccessKey: required('S3_SECRET_ACCESS_KEY'),
 		// Path-style addressing is what MinIO and the local fake need; AWS accepts it too.
-		forcePathStyle: (process.env.S3_FORCE_PATH_STYLE ?? 'true') !== 'false'
+		forcePathStyle: (process.env.S3_FORCE_PATH_STYLE ?? 'true') !== 'false',
+		timeoutMs: Number(process.env.S3_TIMEOUT_MS) > 0 ? Number(process.env.S3_TIMEOUT_MS) : 30_000
 	};
 }
 

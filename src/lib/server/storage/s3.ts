@@ -26,10 +26,21 @@ export function s3(): S3Client {
 			// S3-compatible stores (and the local fake) store verbatim inside the object.
 			requestChecksumCalculation: 'WHEN_REQUIRED',
 			responseChecksumValidation: 'WHEN_REQUIRED',
-			maxAttempts: 3
+			maxAttempts: 3,
+			// A store that accepts connections but never answers must not hang requests for ever.
+			requestHandler: { connectionTimeout: 5_000, requestTimeout: 20_000 }
 		});
 	}
 	return client;
+}
+
+/**
+ * Every call ends within S3_TIMEOUT_MS, retries included: a store that accepts connections but
+ * never answers (hung, overloaded) turns into an error the caller reports, not a hung request.
+ */
+function deadline(signal?: AbortSignal): AbortSignal {
+	const timeout = AbortSignal.timeout(s3Settings().timeoutMs);
+	return signal ? AbortSignal.any([signal, timeout]) : timeout;
 }
 
 export function bucket(): string {
@@ -37,37 +48,39 @@ export function bucket(): string {
 }
 
 export async function headBucket(signal?: AbortSignal): Promise<void> {
-	await s3().send(new HeadBucketCommand({ Bucket: bucket() }), { abortSignal: signal });
+	await s3().send(new HeadBucketCommand({ Bucket: bucket() }), { abortSignal: deadline(signal) });
 }
 
 export async function ensureBucket(): Promise<void> {
 	try {
 		await headBucket();
 	} catch {
-		await s3().send(new CreateBucketCommand({ Bucket: bucket() }));
+		await s3().send(new CreateBucketCommand({ Bucket: bucket() }), { abortSignal: deadline() });
 	}
 }
 
 export async function putObject(key: string, body: Uint8Array | string, contentType: string) {
 	await s3().send(
-		new PutObjectCommand({ Bucket: bucket(), Key: key, Body: body, ContentType: contentType })
+		new PutObjectCommand({ Bucket: bucket(), Key: key, Body: body, ContentType: contentType }),
+		{ abortSignal: deadline() }
 	);
 }
 
 export async function getObjectBytes(key: string): Promise<Uint8Array> {
-	const out = await s3().send(new GetObjectCommand({ Bucket: bucket(), Key: key }));
+	const signal = deadline();
+	const out = await s3().send(new GetObjectCommand({ Bucket: bucket(), Key: key }), { abortSignal: signal });
 	if (!out.Body) throw new Error(`object ${key} has no body`);
 	return out.Body.transformToByteArray();
 }
 
 export async function deleteObject(key: string): Promise<void> {
-	await s3().send(new DeleteObjectCommand({ Bucket: bucket(), Key: key }));
+	await s3().send(new DeleteObjectCommand({ Bucket: bucket(), Key: key }), { abortSignal: deadline() });
 }
 
 /** Size and time of an object, or null when there is none. */
 export async function headObject(key: string): Promise<{ size: number; modified: Date } | null> {
 	try {
-		const out = await s3().send(new HeadObjectCommand({ Bucket: bucket(), Key: key }));
+		const out = await s3().send(new HeadObjectCommand({ Bucket: bucket(), Key: key }), { abortSignal: deadline() });
 		return { size: out.ContentLength ?? 0, modified: out.LastModified ?? new Date() };
 	} catch (error) {
 		const status = (error as { $metadata?: { httpStatusCode?: number } }).$metadata?.httpStatusCode;
@@ -82,7 +95,8 @@ export async function listObjects(prefix: string): Promise<{ key: string; size: 
 	let token: string | undefined;
 	do {
 		const page = await s3().send(
-			new ListObjectsV2Command({ Bucket: bucket(), Prefix: prefix, ContinuationToken: token })
+			new ListObjectsV2Command({ Bucket: bucket(), Prefix: prefix, ContinuationToken: token }),
+			{ abortSignal: deadline() }
 		);
 		for (const o of page.Contents ?? []) {
 			if (o.Key) out.push({ key: o.Key, size: o.Size ?? 0, modified: o.LastModified ?? new Date() });

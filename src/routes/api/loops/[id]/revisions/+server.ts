@@ -29,7 +29,12 @@ export const POST = (async (event) =>
 		let form: FormData;
 		try {
 			form = await event.request.formData();
-		} catch {
+		} catch (error) {
+			// A body without Content-Length is cut off by adapter-node at BODY_SIZE_LIMIT.
+			const status = (error as { status?: number; cause?: { status?: number } }).status ?? (error as { cause?: { status?: number } }).cause?.status;
+			if (status === 413 || /BODY_SIZE_LIMIT|exceed/i.test(String((error as Error)?.message ?? ''))) {
+				throw new TooLarge(`The upload is larger than the ${MAX_MODEL_BYTES / 1024 / 1024} MB limit; nothing was stored.`);
+			}
 			throw new Invalid('Send the model as multipart/form-data with a field named "file".', 'file');
 		}
 		const file = form.get('file');
