@@ -3,17 +3,19 @@ import { forkEm } from '../db/orm';
 import { computeRevision } from '../revisions/compute';
 import { reconcileStorage } from '../revisions/reconcile';
 import { notifyVerdict } from '../verdicts/notify';
-import { expireDeviations, rejudgeClass, rejudgeLoops } from '../verdicts/rejudge';
+import { applyDeviationTimes, rejudgeClass, rejudgeLoops } from '../verdicts/rejudge';
 import {
 	QUEUES,
-	SCHEDULES,
+	schedules,
 	type ComputeRevisionData,
 	type NotifyVerdictData,
 	type PingData,
 	type QueueName,
 	type RejudgeClassData,
-	type RejudgeLoopsData
+	type RejudgeLoopsData,
+	type SendDigestData
 } from './queues';
+import { openDigests, sendDigest } from '../verdicts/digest';
 
 const COMPUTE_LOOPS = 4;
 const COMPUTE_BATCH = 8;
@@ -73,7 +75,13 @@ export async function registerHandlers(boss: PgBoss, options: { origin: string }
 		{ pollingIntervalSeconds: 2 },
 		each(boss, QUEUES.notifyVerdict, async ({ eventId }) => notifyVerdict(await forkEm(), eventId, options.origin))
 	);
-	await boss.work(QUEUES.expireDeviations, { pollingIntervalSeconds: 5 }, each(boss, QUEUES.expireDeviations, async () => expireDeviations(await forkEm())));
+	await boss.work(QUEUES.expireDeviations, { pollingIntervalSeconds: 5 }, each(boss, QUEUES.expireDeviations, async () => applyDeviationTimes(await forkEm())));
 	await boss.work(QUEUES.reconcileStorage, { pollingIntervalSeconds: 5 }, each(boss, QUEUES.reconcileStorage, async () => reconcileStorage(await forkEm())));
-	for (const [name, cron] of Object.entries(SCHEDULES)) await boss.schedule(name, cron);
+	await boss.work(QUEUES.openDigests, { pollingIntervalSeconds: 5 }, each(boss, QUEUES.openDigests, async () => openDigests(await forkEm())));
+	await boss.work<SendDigestData>(
+		QUEUES.sendDigest,
+		{ pollingIntervalSeconds: 2 },
+		each(boss, QUEUES.sendDigest, async ({ digestId }) => sendDigest(await forkEm(), digestId, options.origin))
+	);
+	for (const [name, cron] of Object.entries(schedules())) await boss.schedule(name, cron);
 }

@@ -10,6 +10,7 @@ import { ENGINE_VERSION, computeMargins, parseModelText } from '../../margins';
 import { getObjectBytes } from '../storage/s3';
 import { judgeLoops, type VerdictChange } from '../verdicts/judge-loops';
 import { enqueueNotifications } from '../verdicts/notify-enqueue';
+import { FAULTS, faultPoint } from '../jobs/faults';
 
 export type ComputeOutcome = 'computed' | 'rejected' | 'skipped';
 
@@ -53,6 +54,7 @@ export async function computeRevision(em: EntityManager, revisionId: string): Pr
 		]);
 		throw error; // pg-boss retries with backoff
 	}
+	await faultPoint(FAULTS.computeHoldAfterDownload, rev.id);
 	const sha256 = createHash('sha256').update(bytes).digest('hex');
 	const duplicate = await em.getConnection().execute<{ number: number }[]>(
 		'select number from revision where loop_id = ? and sha256 = ? and id <> ? order by number limit 1',

@@ -2,10 +2,9 @@ import { defineEntity, p, type InferEntity } from '@mikro-orm/core';
 // Relative, not $lib: the MikroORM CLI and tsx scripts load entities without SvelteKit's aliases.
 import { ROLES, type Role } from '../../../auth/roles';
 
-export { ROLES, type Role };
+import { VERDICT_MAIL_MODES, type VerdictMailMode } from '../../../notifications';
 
-export const VERDICT_MAIL_MODES = ['immediate', 'digest'] as const;
-export type VerdictMailMode = (typeof VERDICT_MAIL_MODES)[number];
+export { ROLES, type Role, VERDICT_MAIL_MODES, type VerdictMailMode };
 
 export const UserSchema = defineEntity({
 	name: 'User',
