@@ -1,15 +1,16 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { judgeLoops, type JudgeCause, type VerdictChange } from './judge-loops';
 import { enqueueNotifications } from './notify-enqueue';
+import { timed, type Timings } from '../jobs/timings';
 
 /** Every loop of a class judged again, in one transaction (batched inside judgeLoops). */
-export async function rejudgeClass(em: EntityManager, classId: string, cause: JudgeCause): Promise<VerdictChange[]> {
+export async function rejudgeClass(em: EntityManager, classId: string, cause: JudgeCause, timings?: Timings): Promise<VerdictChange[]> {
 	return em.transactional(async (tx) => {
 		const rows = await tx
 			.getConnection()
 			.execute<{ id: string }[]>('select id from loop where loop_class_id = ?', [classId], 'all', tx.getTransactionContext());
-		const changes = await judgeLoops(tx, rows.map((r) => r.id), cause);
-		await enqueueNotifications(tx, changes);
+		const changes = await judgeLoops(tx, rows.map((r) => r.id), cause, new Date(), timings);
+		await timed(timings, 'enqueue verdict mails', () => enqueueNotifications(tx, changes));
 		return changes;
 	});
 }
