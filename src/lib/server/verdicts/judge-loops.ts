@@ -31,7 +31,6 @@ interface LoopRow {
 	class_id: string;
 	verdict: Verdict;
 	revision_id: string | null;
-	/** The part of the report the rules read: `worstCase`, and `cases` with name and gainCrossovers only. */
 	result: MarginsResult | null;
 	has_pending: boolean;
 	has_rejected: boolean;
@@ -42,13 +41,7 @@ const list = (n: number) => Array.from({ length: n }, () => '?').join(', ');
 
 async function loadLoops(em: EntityManager, ids: string[]): Promise<LoopRow[]> {
 	return em.getConnection().execute<LoopRow[]>(
-		// Only what the rules read (the worst case, and each case's gain crossovers for the band),
-		// not the whole report: a class of thousands of loops is judged with a fraction of the bytes.
-		`select l.id, l.loop_class_id as class_id, l.verdict, c.id as revision_id,
-		        case when mr.result is null then null else jsonb_build_object(
-		          'worstCase', mr.result->'worstCase',
-		          'cases', (select coalesce(jsonb_agg(jsonb_build_object('name', x->'name', 'gainCrossovers', x->'gainCrossovers')), '[]'::jsonb)
-		                    from jsonb_array_elements(mr.result->'cases') x)) end as result,
+		`select l.id, l.loop_class_id as class_id, l.verdict, c.id as revision_id, mr.result,
 		        exists (select 1 from revision p where p.loop_id = l.id and p.state in ('queued', 'computing')) as has_pending,
 		        exists (select 1 from revision x where x.loop_id = l.id and x.state = 'rejected') as has_rejected
 		 from loop l
