@@ -125,7 +125,8 @@ async function write(em: EntityManager, prepared: Prepared[], timings?: Timings)
 				ctx
 			);
 		}
-		const changes = await timed(timings, 'judge (inside the write)', () => judgeLoops(tx, [...new Set(prepared.map((p) => p.loop_id))], 'revision'));
+		// Sorted, so concurrent batches touching the same loops lock them in the same order.
+		const changes = await timed(timings, 'judge (inside the write)', () => judgeLoops(tx, [...new Set(prepared.map((p) => p.loop_id))].sort(), 'revision'));
 		await enqueueNotifications(tx, changes);
 	}));
 }

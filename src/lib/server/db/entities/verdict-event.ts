@@ -31,8 +31,7 @@ export const VerdictEventSchema = defineEntity({
 	},
 	indexes: [
 		{ properties: ['loop', 'at'] },
-		{ name: 'verdict_event_outbox', properties: ['worse', 'notifiedAt'] },
-		{ name: 'verdict_event_worse_at', properties: ['worse', 'at'] }
+		{ name: 'verdict_event_outbox', properties: ['worse', 'notifiedAt'] }
 	]
 });
 

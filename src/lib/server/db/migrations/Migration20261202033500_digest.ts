@@ -12,7 +12,6 @@ export class Migration20261202033500_digest extends Migration {
 
     this.addSql(`alter table "verdict_event" add column "digest_id" uuid null;`);
     this.addSql(`alter table "verdict_event" add constraint "verdict_event_digest_id_foreign" foreign key ("digest_id") references "verdict_digest" ("id") on update cascade on delete set null;`);
-    this.addSql(`create index "verdict_event_worse_at" on "verdict_event" ("worse", "at");`);
 
     this.addSql(`alter table "deviation" add column "start_processed_at" timestamptz null;`);
     // Deviations granted to start at once were judged at the grant; later starts still need a pass.
@@ -21,7 +20,6 @@ export class Migration20261202033500_digest extends Migration {
 
   override async down(): Promise<void> {
     this.addSql(`alter table "verdict_event" drop constraint "verdict_event_digest_id_foreign";`);
-    this.addSql(`drop index "verdict_event_worse_at";`);
     this.addSql(`alter table "verdict_event" drop column "digest_id";`);
     this.addSql(`drop table if exists "verdict_digest" cascade;`);
     this.addSql(`alter table "deviation" drop column "start_processed_at";`);
