@@ -5,6 +5,11 @@
  *   - upload → verdict visible: median and 95th percentile over sequential uploads
  *   - revisions computed and judged per second, with one worker process and with two
  *   - a new target version for a class of 10,000 loops: every loop judged again
+ *   - where a revision's time goes: the compute path run in this process, phase by phase, in
+ *     batches and one revision at a time, and the re-judge's phases
+ * The machine may be shared, so each figure is also printed relative to a reference measured in
+ * this process just before it (the bare engine's models per second and `select 1` round trips
+ * per second): those ratios move less with the machine's load than the raw figures.
  */
 import { chmodSync, mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -64,7 +69,9 @@ async function main() {
 	const { createProduct } = await import('../src/lib/server/registry/products');
 	const { createClass } = await import('../src/lib/server/registry/classes');
 	const { createLoop } = await import('../src/lib/server/registry/loops');
-	const { judgeLoops } = await import('../src/lib/server/verdicts/judge-loops');
+	const { rejudgeClass } = await import('../src/lib/server/verdicts/rejudge');
+	const { computeRevisions } = await import('../src/lib/server/revisions/compute');
+	const { computeMargins, parseModelText } = await import('../src/lib/margins');
 	const { UserSchema } = await import('../src/lib/server/db/entities');
 
 	const orm = await MikroORM.init(ormOptions(env.DATABASE_URL!));
@@ -82,6 +89,30 @@ async function main() {
 	const verdictOf = async () => (await conn.execute<{ judged_revision_id: string | null }[]>('select judged_revision_id from loop where id = ?', [loop.id]))[0].judged_revision_id;
 
 	console.log(`\nHeadroom jobs benchmark (PostgreSQL ${pg.port}, S3 fake ${s3Port})\n`);
+
+	/** The machine right now: the bare engine's rate and the database's round-trip rate. */
+	async function reference() {
+		const text = new TextDecoder().decode(model(7));
+		let t0 = performance.now();
+		let n = 0;
+		while (performance.now() - t0 < 500) {
+			const parsed = parseModelText(text, 'm.json');
+			if (parsed.ok) computeMargins(parsed.model);
+			n++;
+		}
+		const engine = n / ((performance.now() - t0) / 1000);
+		t0 = performance.now();
+		for (let i = 0; i < 200; i++) await conn.execute('select 1');
+		const trips = 200 / ((performance.now() - t0) / 1000);
+		console.log(`  reference now: engine ${engine.toFixed(0)} models/s in this process, ${trips.toFixed(0)} database round trips/s`);
+		return { engine, trips };
+	}
+	const relative = (perSecond: number, ref: { engine: number }) => `${((perSecond / ref.engine) * 100).toFixed(1)}% of the bare engine rate`;
+	const printTimings = (title: string, t: Record<string, number>, count: number, unit: string) => {
+		const total = Object.values(t).reduce((a, b) => a + b, 0);
+		console.log(`  ${title}:`);
+		for (const [phase, ms] of Object.entries(t)) console.log(`    ${phase.padEnd(28)} ${(ms / count).toFixed(3).padStart(8)} ms/${unit}  ${((ms / total) * 100).toFixed(0).padStart(3)}%`);
+	};
 	let worker = await startWorker(env);
 	const latencies: number[] = [];
 	for (let i = 0; i < UPLOADS; i++) {
@@ -113,11 +144,37 @@ async function main() {
 		worker = started[0];
 		return BATCH / seconds;
 	}
+	const ref1 = await reference();
 	const one = await throughput(1, 100_000);
-	console.log(`one worker: ${one.toFixed(0)} revisions/s computed and judged (target ≥ 100)`);
+	console.log(`one worker: ${one.toFixed(0)} revisions/s computed and judged (target ≥ 100); ${relative(one, ref1)}`);
+	const ref2 = await reference();
 	const two = await throughput(2, 200_000);
-	console.log(`two workers: ${two.toFixed(0)} revisions/s (${(two / one).toFixed(2)}× one worker; target ≈ 2×, on this 2-core machine the database shares the cores)`);
+	console.log(`two workers: ${two.toFixed(0)} revisions/s (${(two / one).toFixed(2)}× one worker; target ≈ 2×, on this 2-core machine the database shares the cores); ${relative(two, ref2)}`);
 	await stopWorker(worker);
+
+	// Where a revision's time goes: the worker's compute path in this process (no pg-boss), with
+	// the worker's batch size and one revision at a time, on the same kind of backlog.
+	const PROFILE = Number(process.env.BENCH_PROFILE ?? 200);
+	async function profile(batch: number, offset: number) {
+		const loops: string[] = [];
+		for (let i = 0; i < 20; i++) {
+			loops.push((await createLoop(em(), lead, { product: 'bench', class: 'speed', key: `p${offset}-${i}`, name: `Profile ${i}`, owner: lead.email })).id);
+		}
+		const ids: string[] = [];
+		for (let i = 0; i < PROFILE; i++) ids.push((await uploadRevision(em(), lead, loops[i % loops.length], { bytes: model(offset + i) })).id);
+		const timings: Record<string, number> = {};
+		const t0 = performance.now();
+		for (let i = 0; i < ids.length; i += batch) await computeRevisions(em(), ids.slice(i, i + batch), timings);
+		const rate = ids.length / ((performance.now() - t0) / 1000);
+		return { rate, timings };
+	}
+	const refP = await reference();
+	const batched = await profile(25, 300_000);
+	const single = await profile(1, 400_000);
+	console.log(`in-process compute path, ${PROFILE} revisions: batches of 25 ${batched.rate.toFixed(0)}/s (${relative(batched.rate, refP)}), one at a time ${single.rate.toFixed(0)}/s (${relative(single.rate, refP)}); batching ${(batched.rate / single.rate).toFixed(2)}×`);
+	printTimings('batches of 25, per revision', batched.timings, PROFILE, 'rev');
+	printTimings('one at a time, per revision', single.timings, PROFILE, 'rev');
+	console.log(`  pg-boss fetch/complete and polling: the rest of one worker's time (${(1000 / one).toFixed(2)} ms/rev in the worker vs ${(1000 / batched.rate).toFixed(2)} ms/rev here)`);
 
 	// 10,000 loops of one class, each with a computed report (copied in SQL), judged in one go.
 	const [{ id: classId }] = await conn.execute<{ id: string }[]>(`select id from loop_class where key = 'speed'`);
@@ -135,11 +192,20 @@ async function main() {
 		 insert into margin_report (revision_id, engine_version, result, compute_ms) select rev.id, 'bench', src.result, 0 from rev, src`,
 		[loop.id, lead.id]
 	);
-	const ids = (await conn.execute<{ id: string }[]>('select id from loop where loop_class_id = ?', [classId])).map((r) => r.id);
+	const [{ n: classSize }] = await conn.execute<{ n: number }[]>('select count(*)::int as n from loop where loop_class_id = ?', [classId]);
+	// Judged once against the targets in force, then a tighter target version makes every loop
+	// worse: the measured re-judge stores 10,000 changes and enqueues their mails, as in real life.
+	const { setRequirement } = await import('../src/lib/server/registry/requirements');
+	await rejudgeClass(em(), classId, 'requirement');
+	await setRequirement(em(), lead, 'speed', { minPhaseMarginDeg: '89', minUpperGainMarginDb: '6', reason: 'bench: tighter phase margin' });
+	const refJ = await reference();
+	const judgeTimings: Record<string, number> = {};
 	const t0 = performance.now();
-	await em().transactional((tx) => judgeLoops(tx, ids, 'requirement'));
+	// The job's own function: every loop judged, changes stored, their mails enqueued, one transaction.
+	const changed = await rejudgeClass(em(), classId, 'requirement', judgeTimings);
 	const judgeS = (performance.now() - t0) / 1000;
-	console.log(`re-judge a class of ${ids.length} loops: ${judgeS.toFixed(2)} s (target ≤ 5 s)`);
+	console.log(`re-judge a class of ${classSize} loops: ${judgeS.toFixed(2)} s (target ≤ 5 s; ${changed.length} verdicts changed, ${changed.filter((c) => c.worse).length} mails enqueued); ${(judgeS * refJ.engine).toFixed(0)} engine-model times`);
+	printTimings('re-judge phases, per 1000 loops', judgeTimings, classSize / 1000, '1000');
 	await orm.close(true);
 }
 

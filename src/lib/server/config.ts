@@ -93,3 +93,39 @@ export function oidcSettings(): OidcSettings | undefined {
 		name: process.env.OIDC_NAME || 'Company single sign-on'
 	};
 }
+
+function positiveNumber(name: string): number | undefined {
+	const raw = process.env[name];
+	if (raw === undefined || raw === '') return undefined;
+	const value = Number(raw);
+	if (!Number.isFinite(value) || value < 1) throw new Error(`Environment variable ${name} must be a number of seconds ≥ 1, not "${raw}".`);
+	return value;
+}
+
+/**
+ * Seconds a compute job may stay active before pg-boss takes its worker for dead and retries it
+ * (HEADROOM_COMPUTE_EXPIRE_SECONDS, default 60). Applied to the queue when a worker starts.
+ */
+export function computeJobExpirySeconds(): number {
+	return positiveNumber('HEADROOM_COMPUTE_EXPIRE_SECONDS') ?? 60;
+}
+
+/** How often workers run pg-boss's maintenance, which expires lost jobs (HEADROOM_JOB_MAINTENANCE_SECONDS; pg-boss's 120 s). */
+export function jobMaintenanceSeconds(): number | undefined {
+	return positiveNumber('HEADROOM_JOB_MAINTENANCE_SECONDS');
+}
+
+/** When the daily verdict digest goes out (HEADROOM_DIGEST_CRON, cron in UTC; default 06:00). */
+export function digestCron(): string {
+	return process.env.HEADROOM_DIGEST_CRON || '0 6 * * *';
+}
+
+/**
+ * Test-only fault points (HEADROOM_TEST_FAULTS, comma-separated names, see jobs/faults.ts).
+ * Never honoured with NODE_ENV=production, whatever the variable says.
+ */
+export function testFaults(): string[] {
+	const raw = process.env.HEADROOM_TEST_FAULTS;
+	if (!raw || isProduction()) return [];
+	return raw.split(',').map((s) => s.trim()).filter(Boolean);
+}

@@ -1,6 +1,6 @@
 import PgBoss from 'pg-boss';
-import { databaseUrl } from '../config';
-import { QUEUES, QUEUE_OPTIONS } from './queues';
+import { databaseUrl, jobMaintenanceSeconds } from '../config';
+import { QUEUES, queueOptions } from './queues';
 
 export const BOSS_SCHEMA = 'pgboss';
 
@@ -18,6 +18,7 @@ export function createBoss({ role, connectionString }: BossOptions): PgBoss {
 		max: role === 'web' ? 4 : 8,
 		supervise: role === 'worker',
 		schedule: role === 'worker',
+		...(role === 'worker' && jobMaintenanceSeconds() ? { maintenanceIntervalSeconds: jobMaintenanceSeconds() } : {}),
 		migrate: true
 	});
 	// pg-boss emits errors (lost connections, maintenance failures) instead of throwing;
@@ -26,9 +27,12 @@ export function createBoss({ role, connectionString }: BossOptions): PgBoss {
 	return boss;
 }
 
-export async function createQueues(boss: PgBoss): Promise<void> {
+/** Create our queues, and bring existing ones to the current policy (retries, expiry). */
+export async function createQueues(boss: PgBoss, { update = false } = {}): Promise<void> {
+	const options = queueOptions();
 	for (const name of Object.values(QUEUES)) {
-		await boss.createQueue(name, { name, ...QUEUE_OPTIONS[name] });
+		await boss.createQueue(name, { name, ...options[name] });
+		if (update) await boss.updateQueue(name, { name, ...options[name] });
 	}
 }
 

@@ -17,3 +17,12 @@ export async function enqueueInTx(
 	const { tag, ...rest } = options;
 	return txSender().send(name, data, { ...rest, ...(tag ? { singletonKey: tag } : {}), db: transactionalDb(tx) });
 }
+
+/** Many jobs of one queue in one statement on the caller's transaction (e.g. a re-judge's mails). */
+export async function enqueueManyInTx(tx: EntityManager, name: QueueName, items: { data: object; tag?: string }[]): Promise<void> {
+	if (!items.length) return;
+	await txSender().insert(
+		items.map(({ data, tag }) => ({ name, data, ...(tag ? { singletonKey: tag } : {}) })),
+		{ db: transactionalDb(tx) }
+	);
+}

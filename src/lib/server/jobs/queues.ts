@@ -1,4 +1,5 @@
 import type PgBoss from 'pg-boss';
+import { computeJobExpirySeconds, digestCron } from '../config';
 
 /**
  * Every queue the product uses, with its retry policy. The web side only enqueues; workers
@@ -11,29 +12,37 @@ export const QUEUES = {
 	rejudgeClass: 'verdict.rejudge-class',
 	rejudgeLoops: 'verdict.rejudge-loops',
 	notifyVerdict: 'verdict.notify',
+	/** Scheduled: deviations whose start came or whose expiry passed are applied, loops re-judged. */
 	expireDeviations: 'deviation.expire',
+	/** Scheduled daily: a digest (outbox row + send job) for every lead who chose one. */
+	openDigests: 'verdict.digest',
+	sendDigest: 'verdict.send-digest',
 	reconcileStorage: 'storage.reconcile'
 } as const;
 
 export type QueueName = (typeof QUEUES)[keyof typeof QUEUES];
 
-export const QUEUE_OPTIONS: Record<QueueName, Omit<PgBoss.Queue, 'name'>> = {
+/** Read when a queue is created or a worker starts (the compute expiry is configurable). */
+export const queueOptions = (): Record<QueueName, Omit<PgBoss.Queue, 'name'>> => ({
 	[QUEUES.ping]: { retryLimit: 2, retryDelay: 1, retryBackoff: true, expireInSeconds: 60 },
 	// A worker killed mid-job leaves the job active until it expires; then pg-boss retries it.
-	[QUEUES.computeRevision]: { retryLimit: 5, retryDelay: 2, retryBackoff: true, expireInSeconds: 60 },
+	[QUEUES.computeRevision]: { retryLimit: 5, retryDelay: 2, retryBackoff: true, expireInSeconds: computeJobExpirySeconds() },
 	[QUEUES.rejudgeClass]: { retryLimit: 5, retryDelay: 2, retryBackoff: true, expireInSeconds: 300 },
 	[QUEUES.rejudgeLoops]: { retryLimit: 5, retryDelay: 2, retryBackoff: true, expireInSeconds: 300 },
 	// Mail outages can last: keep trying for about a day before giving up (the outbox row stays).
 	[QUEUES.notifyVerdict]: { retryLimit: 30, retryDelay: 30, retryBackoff: true, expireInSeconds: 60 },
 	[QUEUES.expireDeviations]: { retryLimit: 2, retryDelay: 10, expireInSeconds: 300 },
-	[QUEUES.reconcileStorage]: { retryLimit: 2, retryDelay: 10, expireInSeconds: 600 }
-};
+	[QUEUES.reconcileStorage]: { retryLimit: 2, retryDelay: 10, expireInSeconds: 600 },
+	[QUEUES.openDigests]: { retryLimit: 5, retryDelay: 60, retryBackoff: true, expireInSeconds: 300 },
+	[QUEUES.sendDigest]: { retryLimit: 30, retryDelay: 30, retryBackoff: true, expireInSeconds: 60 }
+});
 
 /** Cron schedules of the periodic jobs (run by whichever worker's clock fires first). */
-export const SCHEDULES: Partial<Record<QueueName, string>> = {
+export const schedules = (): Partial<Record<QueueName, string>> => ({
 	[QUEUES.expireDeviations]: '* * * * *',
-	[QUEUES.reconcileStorage]: '*/5 * * * *'
-};
+	[QUEUES.reconcileStorage]: '*/5 * * * *',
+	[QUEUES.openDigests]: digestCron()
+});
 
 export interface PingData {
 	/** Echoed back in the job's output so a caller can recognise its own job. */
@@ -52,4 +61,7 @@ export interface RejudgeLoopsData {
 }
 export interface NotifyVerdictData {
 	eventId: string;
+}
+export interface SendDigestData {
+	digestId: string;
 }

@@ -9,7 +9,7 @@ export interface RunningWorker {
 export async function startWorker(connectionString?: string): Promise<RunningWorker> {
 	const boss = createBoss({ role: 'worker', connectionString });
 	await boss.start();
-	await createQueues(boss);
+	await createQueues(boss, { update: true });
 	await registerHandlers(boss, { origin: process.env.ORIGIN ?? 'http://127.0.0.1:3000' });
 	return {
 		async stop() {

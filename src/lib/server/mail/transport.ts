@@ -2,11 +2,17 @@ import nodemailer, { type Transporter } from 'nodemailer';
 import { mailFrom, smtpUrl } from '../config';
 
 let transporter: Transporter | undefined;
+let transporterUrl = '';
 
-/** SMTP through nodemailer; locally the fake SMTP server on loopback (no TLS, no auth). */
+/**
+ * SMTP through nodemailer; locally the fake SMTP server on loopback (no TLS, no auth). Built
+ * again when SMTP_URL changes (read when asked for, like every setting).
+ */
 export function mailer(): Transporter {
-	if (!transporter) {
-		const url = new URL(smtpUrl());
+	if (!transporter || transporterUrl !== smtpUrl()) {
+		transporter?.close();
+		transporterUrl = smtpUrl();
+		const url = new URL(transporterUrl);
 		const local = url.hostname === '127.0.0.1' || url.hostname === 'localhost';
 		transporter = nodemailer.createTransport({
 			host: url.hostname,

@@ -156,7 +156,9 @@ export async function grantDeviation(
 				expiresAt,
 				revokedAt: null,
 				revokedBy: null,
-				createdAt: now
+				createdAt: now,
+				// Judged right below when it starts at once; a later start is the scheduled pass's.
+				startProcessedAt: startsAt <= now ? now : null
 			});
 			await tx.flush();
 			recordAudit(tx, { actorId: actor.id, action: 'deviation.grant', entityType: 'deviation', entityId: d.id, after: deviationSnapshot(d) });

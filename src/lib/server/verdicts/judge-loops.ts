@@ -12,6 +12,7 @@ import type { MarginsResult, WorstCase } from '../../margins/types';
 import { TARGET_KEYS } from '../db/entities/targets';
 import { VERDICT_RANK } from '../db/entities/verdict-event';
 import type { Verdict } from '../../compliance/judge';
+import { timed, type Timings } from '../jobs/timings';
 
 export const BATCH = 1000;
 
@@ -115,22 +116,24 @@ export async function judgeLoops(
 	em: EntityManager,
 	loopIds: string[],
 	cause: JudgeCause,
-	now = new Date()
+	now = new Date(),
+	timings?: Timings
 ): Promise<VerdictChange[]> {
 	const changes: VerdictChange[] = [];
 	for (let i = 0; i < loopIds.length; i += BATCH) {
-		changes.push(...(await judgeBatch(em, loopIds.slice(i, i + BATCH), cause, now)));
+		changes.push(...(await judgeBatch(em, loopIds.slice(i, i + BATCH), cause, now, timings)));
 	}
 	return changes;
 }
 
-async function judgeBatch(em: EntityManager, ids: string[], cause: JudgeCause, now: Date) {
-	const loops = await loadLoops(em, ids);
+async function judgeBatch(em: EntityManager, ids: string[], cause: JudgeCause, now: Date, timings?: Timings) {
+	const loops = await timed(timings, 'load loops + reports', () => loadLoops(em, ids));
 	if (!loops.length) return [];
-	const requirements = await loadTargets(em, [...new Set(loops.map((l) => l.class_id))]);
-	const deviations = await loadDeviations(em, ids, now);
-	const updates: unknown[] = [];
-	const events: unknown[] = [];
+	const requirements = await timed(timings, 'load targets', () => loadTargets(em, [...new Set(loops.map((l) => l.class_id))]));
+	const deviations = await timed(timings, 'load deviations', () => loadDeviations(em, ids, now));
+	const started = performance.now();
+	const updates: object[] = [];
+	const events: object[] = [];
 	const changes: VerdictChange[] = [];
 	for (const loop of loops) {
 		const requirement = requirements.get(loop.class_id);
@@ -142,39 +145,55 @@ async function judgeBatch(em: EntityManager, ids: string[], cause: JudgeCause, n
 			now
 		});
 		const w = worstColumns(loop.result?.worstCase);
-		updates.push(loop.id, j.verdict, JSON.stringify(j), loop.revision_id, requirement?.id ?? null, w.pm, w.gm, w.dm, w.mm);
+		updates.push({ id: loop.id, verdict: j.verdict, detail: j, revision_id: loop.revision_id, requirement_id: requirement?.id ?? null, ...w });
 		if (j.verdict !== loop.verdict) {
 			const eventId = crypto.randomUUID();
 			const worse = VERDICT_RANK[j.verdict] > VERDICT_RANK[loop.verdict];
-			events.push(eventId, loop.id, j.verdict, loop.verdict, loop.revision_id, requirement?.id ?? null, JSON.stringify(j.failing), JSON.stringify(j.criteria), cause, now, worse);
+			events.push({
+				id: eventId,
+				loop_id: loop.id,
+				verdict: j.verdict,
+				previous_verdict: loop.verdict,
+				revision_id: loop.revision_id,
+				requirement_id: requirement?.id ?? null,
+				failing: j.failing,
+				criteria: j.criteria,
+				worse
+			});
 			changes.push({ loopId: loop.id, eventId, from: loop.verdict, to: j.verdict, worse });
 		}
 	}
+	if (timings) timings['rules (JS)'] = (timings['rules (JS)'] ?? 0) + performance.now() - started;
 	const conn = em.getConnection();
 	const ctx = em.getTransactionContext();
-	const rows = loops.map(() => '(?::uuid, ?, ?::jsonb, ?::uuid, ?::uuid, ?::float8, ?::float8, ?::float8, ?::float8)').join(', ');
-	await conn.execute(
-		`update loop l set verdict = v.verdict, verdict_detail = v.detail, judged_revision_id = v.revision_id,
-		        judged_requirement_id = v.requirement_id, judged_at = ?,
-		        verdict_changed_at = case when l.verdict is distinct from v.verdict then ? else l.verdict_changed_at end,
-		        wc_phase_margin_deg = v.pm, wc_upper_gain_margin_db = v.gm, wc_delay_margin_s = v.dm, wc_modulus_margin = v.mm
-		 from (values ${rows}) as v(id, verdict, detail, revision_id, requirement_id, pm, gm, dm, mm)
-		 where l.id = v.id`,
-		[now, now, ...updates],
-		'run',
-		ctx
-	);
-	if (changes.length) {
-		// Arrays go in as JSON text: knex would splice a JS array into a value list.
-		const values = changes
-			.map(() => '(?::uuid, ?::uuid, ?, ?, ?::uuid, ?::uuid, array(select jsonb_array_elements_text(?::jsonb)), ?::jsonb, ?, ?, ?)')
-			.join(', ');
-		await conn.execute(
-			`insert into verdict_event (id, loop_id, verdict, previous_verdict, revision_id, requirement_id, failing, criteria, cause, at, worse)
-			 values ${values}`,
-			events,
+	// The whole batch travels as one JSON parameter and is unpacked by jsonb_to_recordset: a
+	// thousand rows cost one short statement instead of ten thousand placeholders to splice and parse.
+	await timed(timings, 'update loops', () =>
+		conn.execute(
+			`update loop l set verdict = v.verdict, verdict_detail = v.detail, judged_revision_id = v.revision_id,
+			        judged_requirement_id = v.requirement_id, judged_at = ?,
+			        verdict_changed_at = case when l.verdict is distinct from v.verdict then ? else l.verdict_changed_at end,
+			        wc_phase_margin_deg = v.pm, wc_upper_gain_margin_db = v.gm, wc_delay_margin_s = v.dm, wc_modulus_margin = v.mm
+			 from jsonb_to_recordset(?::jsonb) as v(id uuid, verdict text, detail jsonb, revision_id uuid, requirement_id uuid,
+			                                       pm float8, gm float8, dm float8, mm float8)
+			 where l.id = v.id`,
+			[now, now, JSON.stringify(updates)],
 			'run',
 			ctx
+		)
+	);
+	if (events.length) {
+		await timed(timings, 'insert verdict events', () =>
+			conn.execute(
+				`insert into verdict_event (id, loop_id, verdict, previous_verdict, revision_id, requirement_id, failing, criteria, cause, at, worse)
+				 select v.id, v.loop_id, v.verdict, v.previous_verdict, v.revision_id, v.requirement_id,
+				        array(select jsonb_array_elements_text(v.failing)), v.criteria, ?, ?, v.worse
+				 from jsonb_to_recordset(?::jsonb) as v(id uuid, loop_id uuid, verdict text, previous_verdict text, revision_id uuid,
+				                                       requirement_id uuid, failing jsonb, criteria jsonb, worse boolean)`,
+				[cause, now, JSON.stringify(events)],
+				'run',
+				ctx
+			)
 		);
 	}
 	return changes;

@@ -25,7 +25,12 @@ export const DeviationSchema = defineEntity({
 		revokedBy: p.manyToOne(UserSchema).nullable(),
 		createdAt: p.datetime().defaultRaw('now()'),
 		/** Set by the expiry job once the loop was judged again after this deviation lapsed. */
-		expiryProcessedAt: p.datetime().nullable()
+		expiryProcessedAt: p.datetime().nullable(),
+		/**
+		 * Set once the loop was judged with this deviation in force: at the grant when it starts at
+		 * once, by the scheduled pass when its start lies in the future.
+		 */
+		startProcessedAt: p.datetime().nullable()
 	},
 	indexes: [{ properties: ['loop'] }, { properties: ['expiresAt'] }],
 	checks: [

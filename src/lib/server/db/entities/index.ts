@@ -11,15 +11,16 @@ import { DeviationSchema } from './deviation';
 import { RevisionSchema } from './revision';
 import { MarginReportSchema } from './margin-report';
 import { VerdictEventSchema } from './verdict-event';
+import { VerdictDigestSchema } from './verdict-digest';
 
 /** Every entity the ORM knows; migrations are generated from this list. */
 export const entities = [UserSchema, AuditEventSchema, OneTimeLinkSchema, ApiTokenSchema, SignInAttemptSchema,
 	// registry
 	ProductSchema, LoopClassSchema, RequirementSchema, LoopSchema, DeviationSchema,
 	// revisions and verdicts
-	RevisionSchema, MarginReportSchema, VerdictEventSchema];
+	RevisionSchema, MarginReportSchema, VerdictEventSchema, VerdictDigestSchema];
 
-export { UserSchema, ROLES, type Role, type User } from './user';
+export { UserSchema, ROLES, VERDICT_MAIL_MODES, type Role, type User, type VerdictMailMode } from './user';
 export { AuditEventSchema, type AuditEvent } from './audit-event';
 export { OneTimeLinkSchema, LINK_PURPOSES, type LinkPurpose, type OneTimeLink } from './one-time-link';
 export { ApiTokenSchema, SCOPES, type Scope, type ApiToken } from './api-token';
@@ -33,3 +34,4 @@ export { TARGET_KEYS, type TargetKey } from './targets';
 export { RevisionSchema, REVISION_STATES, type Revision, type RevisionState } from './revision';
 export { MarginReportSchema, type MarginReport } from './margin-report';
 export { VerdictEventSchema, VERDICT_RANK, type VerdictEvent } from './verdict-event';
+export { VerdictDigestSchema, type VerdictDigest } from './verdict-digest';

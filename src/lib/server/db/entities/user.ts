@@ -2,7 +2,9 @@ import { defineEntity, p, type InferEntity } from '@mikro-orm/core';
 // Relative, not $lib: the MikroORM CLI and tsx scripts load entities without SvelteKit's aliases.
 import { ROLES, type Role } from '../../../auth/roles';
 
-export { ROLES, type Role };
+import { VERDICT_MAIL_MODES, type VerdictMailMode } from '../../../notifications';
+
+export { ROLES, type Role, VERDICT_MAIL_MODES, type VerdictMailMode };
 
 export const UserSchema = defineEntity({
 	name: 'User',
@@ -21,7 +23,12 @@ export const UserSchema = defineEntity({
 		lastSignInAt: p.datetime().nullable(),
 		// Sessions signed in before this instant are void: set on deactivation and password change,
 		// so reactivating an account does not revive a cookie stolen before.
-		sessionsValidFrom: p.datetime().nullable()
+		sessionsValidFrom: p.datetime().nullable(),
+		// How a lead hears about the loops of their classes getting worse: a message per change,
+		// or one daily digest. `verdictMailSince` is when the current choice began (null: always
+		// immediate), so each change goes out one way or the other, never both, never neither.
+		verdictMail: p.enum([...VERDICT_MAIL_MODES]).default('immediate'),
+		verdictMailSince: p.datetime().nullable()
 	}
 });
 

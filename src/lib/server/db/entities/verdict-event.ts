@@ -3,6 +3,7 @@ import { VERDICTS, type CriterionResult, type Verdict } from '../../../complianc
 import { LoopSchema } from './loop';
 import { RevisionSchema } from './revision';
 import { RequirementSchema } from './requirement';
+import { VerdictDigestSchema } from './verdict-digest';
 
 /**
  * A change of a loop's verdict: the history behind the dashboard, and the outbox of verdict
@@ -24,9 +25,14 @@ export const VerdictEventSchema = defineEntity({
 		cause: p.string().length(40),
 		at: p.datetime().defaultRaw('now()'),
 		worse: p.boolean(),
-		notifiedAt: p.datetime().nullable()
+		notifiedAt: p.datetime().nullable(),
+		/** The daily digest that listed this change to the class's lead (when the lead chose one). */
+		digest: p.manyToOne(VerdictDigestSchema).nullable()
 	},
-	indexes: [{ properties: ['loop', 'at'] }, { name: 'verdict_event_outbox', properties: ['worse', 'notifiedAt'] }]
+	indexes: [
+		{ properties: ['loop', 'at'] },
+		{ name: 'verdict_event_outbox', properties: ['worse', 'notifiedAt'] }
+	]
 });
 
 export type VerdictEvent = InferEntity<typeof VerdictEventSchema>;
