@@ -79,6 +79,8 @@ export interface GainCrossoverMarker {
 	/** Where the phase curve is at this frequency (phase panel; clamped into the panel). */
 	phaseY: number;
 	label: string;
+	/** False when the marker's point lies outside its panel (its y was pulled onto the edge). */
+	inside: boolean;
 }
 
 export interface PhaseCrossoverMarker {
@@ -94,6 +96,8 @@ export interface PhaseCrossoverMarker {
 	/** Where the magnitude curve is at this frequency (clamped into the magnitude panel). */
 	magnitudeY: number;
 	label: string;
+	/** False when the critical line lies outside the phase domain (y pulled onto the edge). */
+	inside: boolean;
 }
 
 export interface DimensionLine {
@@ -117,6 +121,11 @@ export interface DimensionLine {
 	labelAnchor: 'start' | 'end';
 	/** True when an end fell outside its panel and was pulled onto the edge. */
 	clipped: boolean;
+	/**
+	 * True for the crossover the case's reported margin comes from (upper or lower gain margin,
+	 * phase margin); the others are drawn too, and a crowded plot may leave their labels out.
+	 */
+	primary: boolean;
 }
 
 export interface ReferenceLine {
@@ -361,12 +370,13 @@ export function bodeGeometry(
 				x: px,
 				y: zeroY,
 				phaseY: inPh(phaseY),
-				label: formatHz(g.hz)
+				label: formatHz(g.hz),
+				inside: zeroY >= magnitudePanel.top && zeroY <= magnitudePanel.bottom
 			});
 			if (!Number.isFinite(ph)) continue;
 			const ref = criticalLineNear(ph - g.phaseMarginDeg);
 			phaseMarginLines.push(
-				dimension('phase-margin', c.name, caseIndex, g.hz, g.phaseMarginDeg, px, phaseY, phScale(ref), phasePanel, `PM ${formatNumber(g.phaseMarginDeg, 3)}°`)
+				dimension('phase-margin', c.name, caseIndex, g.hz, g.phaseMarginDeg, px, phaseY, phScale(ref), phasePanel, `PM ${formatNumber(g.phaseMarginDeg, 3)}°`, g.hz === c.phaseMarginHz)
 			);
 		}
 		for (const p of c.phaseCrossovers) {
@@ -375,6 +385,7 @@ export function bodeGeometry(
 			const ph = valueAt(pts, p.hz, 'phaseDeg');
 			const criticalDeg = criticalLineNear(Number.isFinite(ph) ? ph : -180);
 			const magY = magScale(-p.gainMarginDb);
+			const critY = phScale(criticalDeg);
 			phaseCrossovers.push({
 				caseName: c.name,
 				caseIndex,
@@ -382,15 +393,19 @@ export function bodeGeometry(
 				gainMarginDb: p.gainMarginDb,
 				criticalDeg,
 				x: px,
-				y: inPh(phScale(criticalDeg)),
+				y: inPh(critY),
 				magnitudeY: inMag(magY),
-				label: formatHz(p.hz)
+				label: formatHz(p.hz),
+				inside: critY >= phasePanel.top && critY <= phasePanel.bottom
 			});
 			gainMarginLines.push(
-				dimension('gain-margin', c.name, caseIndex, p.hz, p.gainMarginDb, px, magY, zeroY, magnitudePanel, `GM ${formatNumber(p.gainMarginDb, 3)} dB`)
+				dimension('gain-margin', c.name, caseIndex, p.hz, p.gainMarginDb, px, magY, zeroY, magnitudePanel, `GM ${formatNumber(p.gainMarginDb, 3)} dB`, p.hz === c.upperGainMarginHz || p.hz === c.lowerGainMarginHz)
 			);
 		}
 	});
+
+	markNearest(gainMarginLines);
+	markNearest(phaseMarginLines);
 
 	return {
 		width,
@@ -411,6 +426,16 @@ export function bodeGeometry(
 	};
 }
 
+/** A case without a reported margin (e.g. unstable) still gets its smallest one as primary. */
+function markNearest(lines: DimensionLine[]) {
+	const byCase = new Map<number, DimensionLine[]>();
+	for (const l of lines) byCase.set(l.caseIndex, [...(byCase.get(l.caseIndex) ?? []), l]);
+	for (const group of byCase.values()) {
+		if (group.some((l) => l.primary)) continue;
+		group.reduce((a, b) => (Math.abs(b.value) < Math.abs(a.value) ? b : a)).primary = true;
+	}
+}
+
 function dimension(
 	kind: DimensionLine['kind'],
 	caseName: string,
@@ -421,7 +446,8 @@ function dimension(
 	rawY1: number,
 	rawY2: number,
 	panel: Rect,
-	label: string
+	label: string,
+	primary: boolean
 ): DimensionLine {
 	const y1 = clamp(rawY1, panel.top, panel.bottom);
 	const y2 = clamp(rawY2, panel.top, panel.bottom);
@@ -443,6 +469,7 @@ function dimension(
 		labelX: flip ? x - 6 : x + 6,
 		labelY: (y1 + y2) / 2,
 		labelAnchor: flip ? 'end' : 'start',
-		clipped: y1 !== rawY1 || y2 !== rawY2
+		clipped: y1 !== rawY1 || y2 !== rawY2,
+		primary
 	};
 }

@@ -8,7 +8,7 @@
  *   region they forbid.
  * - One unit of Re and one of Im take the same number of pixels (circles stay round). The view
  *   window is fitted around the −1 point, the unit circle and the curve where |L| ≤ `fitLimit`
- *   (default 4) unless `center` / `radius` fix it; curves are clipped to `frame`, so a loop with
+ *   (default 2.5) unless `center` / `radius` fix it; curves are clipped to `frame`, so a loop with
  *   integrators that runs off to infinity still draws as a clean line to the edge.
  * - The forbidden region of the targets: the disc |1 + L| < required modulus margin (the larger
  *   of min modulus margin and 1 / max peak sensitivity), the segments of the negative real axis
@@ -38,7 +38,7 @@ export interface NyquistOptions {
 	/** Fix the view: centre (re, im) and half-size in units of L. */
 	center?: [number, number];
 	radius?: number;
-	/** The curve is followed out to this |L| when fitting the view (default 4). */
+	/** The curve is followed out to this |L| when fitting the view (default 2.5). */
 	fitLimit?: number;
 }
 
@@ -150,7 +150,7 @@ export function nyquistGeometry(
 	const mmRadius = forbiddenRadius(targets);
 	const caseMm = (margins?.cases ?? []).map((c) => c.modulusMargin ?? 0);
 	const extra = Math.max(mmRadius, ...caseMm.filter((m) => m < 3), 0) + 0.1;
-	const fit = fitWindow(responses, options.fitLimit ?? 4, extra);
+	const fit = fitWindow(responses, options.fitLimit ?? 2.5, extra);
 	const cx = options.center?.[0] ?? fit.cx;
 	const cy = options.center?.[1] ?? fit.cy;
 	const half = options.radius ?? fit.half;

@@ -122,6 +122,11 @@ describe('bodeGeometry', () => {
 			const ph = valueAt(sampleResponse(m)[0].points, p.hz, 'phaseDeg');
 			expect(ph).toBeCloseTo(p.criticalDeg, 4);
 		}
+		// only the crossover the upper gain margin comes from is primary (labelled in a crowd)
+		expect(g.gainMarginLines.filter((l) => l.primary).map((l) => l.hz)).toEqual([r.cases[0].upperGainMarginHz]);
+		// with the phase axis cut short, crossovers on lines off the axis say they are outside
+		const cut = bodeGeometry(sampleResponse(m), r, { width: 800, height: 500, phaseDomainDeg: [-360, 0] });
+		expect(cut.phaseCrossovers.map((p) => p.inside)).toEqual(g.phaseCrossovers.map((p) => p.criticalDeg === -180));
 		expect(criticalLineNear(-530)).toBe(-540);
 		expect(criticalLineNear(170)).toBe(180);
 	});
