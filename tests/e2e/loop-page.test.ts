@@ -120,6 +120,17 @@ describe('the loop page', () => {
 		await snap(page, 'loop-page-desktop-what-if');
 		await page.getByTestId('loop-analysis').screenshot({ path: 'test-results/loop-page-what-if.png' });
 
+		// the case picker: one case in front, then that case alone
+		if (await page.getByTestId('case-picker').count()) {
+			const cases = await bode.locator('[data-testid="bode-magnitude"]').count();
+			expect(cases).toBeGreaterThan(1);
+			await page.getByLabel('Operating case').selectOption({ index: 2 });
+			await page.getByLabel('Show only this case').check();
+			await expect.poll(() => bode.locator('[data-testid="bode-magnitude"]').count(), { timeout: 20_000 }).toBe(1);
+			await page.getByLabel('Operating case').selectOption({ index: 0 });
+			await expect.poll(() => bode.locator('[data-testid="bode-magnitude"]').count(), { timeout: 20_000 }).toBe(cases);
+		}
+
 		// and the slider itself moves it back
 		await page.getByRole('button', { name: 'Back to 0 dB' }).click();
 		await expect.poll(async () => whatIf.locator('[data-verdict]').first().getAttribute('data-verdict'), { timeout: 20_000 }).toBe('compliant');

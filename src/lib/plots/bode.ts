@@ -426,6 +426,25 @@ export function bodeGeometry(
 	};
 }
 
+/**
+ * The dimension lines whose labels can be written without overlapping one another, primary lines
+ * first (then in order). Labels are estimated at `charWidth` px per character, `lineHeight` tall.
+ */
+export function labelledLines(lines: readonly DimensionLine[], charWidth = 6.2, lineHeight = 13): DimensionLine[] {
+	const boxes: { l: number; r: number; t: number; b: number }[] = [];
+	const out: DimensionLine[] = [];
+	const ordered = [...lines].sort((a, b) => Number(b.primary) - Number(a.primary));
+	for (const line of ordered) {
+		const w = line.label.length * charWidth;
+		const l = line.labelAnchor === 'start' ? line.labelX : line.labelX - w;
+		const box = { l, r: l + w, t: line.labelY - lineHeight / 2, b: line.labelY + lineHeight / 2 };
+		if (boxes.some((o) => box.l < o.r && box.r > o.l && box.t < o.b && box.b > o.t)) continue;
+		boxes.push(box);
+		out.push(line);
+	}
+	return out;
+}
+
 /** A case without a reported margin (e.g. unstable) still gets its smallest one as primary. */
 function markNearest(lines: DimensionLine[]) {
 	const byCase = new Map<number, DimensionLine[]>();

@@ -6,6 +6,7 @@
 export {
 	bodeGeometry,
 	criticalLineNear,
+	labelledLines,
 	nearestIndex,
 	valueAt,
 	type Axis,

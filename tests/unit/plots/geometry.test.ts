@@ -4,6 +4,7 @@ import {
 	bodeGeometry,
 	clipPolyline,
 	criticalLineNear,
+	labelledLines,
 	logTicks,
 	nyquistGeometry,
 	alphaOfDiskGainDb,
@@ -129,6 +130,16 @@ describe('bodeGeometry', () => {
 		expect(cut.phaseCrossovers.map((p) => p.inside)).toEqual(g.phaseCrossovers.map((p) => p.criticalDeg === -180));
 		expect(criticalLineNear(-530)).toBe(-540);
 		expect(criticalLineNear(170)).toBe(180);
+	});
+
+	it('labels only dimension lines whose labels do not collide, reported margins first', () => {
+		const m = model({ blocks: [poly([4], [1, 3, 3, 1])], cases: [{ name: 'a' }, { name: 'b', gain: 1.01 }] });
+		const g = bodeGeometry(sampleResponse(m), computeMargins(m), { width: 600, height: 400 });
+		// the two cases' gain margins sit a pixel apart: one label, not two on top of each other
+		expect(g.gainMarginLines).toHaveLength(2);
+		expect(labelledLines(g.gainMarginLines)).toHaveLength(1);
+		const apart = g.gainMarginLines.map((l, i) => ({ ...l, labelY: l.labelY + i * 40 }));
+		expect(labelledLines(apart)).toHaveLength(2);
 	});
 
 	it('draws one curve per case, with markers naming their case', () => {
