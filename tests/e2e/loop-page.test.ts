@@ -150,6 +150,35 @@ describe('the loop page', () => {
 		const overflow = await page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth);
 		expect(overflow).toBeLessThanOrEqual(0);
 		await snap(page, 'loop-page-phone');
+		await page.getByTestId('loop-analysis').screenshot({ path: 'test-results/loop-page-phone-analysis.png' });
+		await context.close();
+	});
+
+	it('plots unstable, covered and measured loops too, and says where an unstable one would meet its targets', async () => {
+		const loops = await settledLoops();
+		const picks = [
+			loops.find((l) => l.verdict === 'unstable'),
+			loops.find((l) => l.verdict === 'covered'),
+			loops.find((l) => l.key === 'speed' && l.verdict !== 'empty')
+		].filter((l): l is LoopItem => !!l);
+		expect(picks.length).toBeGreaterThanOrEqual(2);
+		const context = await browser.newContext({ viewport: { width: 1280, height: 900 } });
+		const page = await context.newPage();
+		const problems: string[] = [];
+		page.on('pageerror', (e) => problems.push(e.message));
+		await signIn(page);
+		for (const l of picks) {
+			await page.goto(`${baseUrl()}/loops/${l.id}`);
+			await page.getByTestId('bode-plot').locator('svg[role="img"]').waitFor({ timeout: 30_000 });
+			await page.getByTestId('nyquist-plot').locator('svg[role="img"]').waitFor();
+			const range = page.getByTestId('meets-range');
+			await expect.poll(async () => range.innerText(), { timeout: 60_000 }).toMatch(/^(Meets|Does not meet)/);
+			const words = await range.innerText();
+			if (l.verdict === 'unstable') expect(words).toMatch(/^Does not meet its targets at nominal gain/);
+			if (l.verdict === 'covered') expect(await page.getByTestId('verdict-detail').locator('tr[data-status="covered"]').count()).toBeGreaterThan(0);
+			await page.getByTestId('loop-analysis').screenshot({ path: `test-results/loop-page-${l.verdict}-${l.key}.png` });
+		}
+		expect(problems).toEqual([]);
 		await context.close();
 	});
 

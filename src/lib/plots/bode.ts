@@ -427,13 +427,14 @@ export function bodeGeometry(
 }
 
 /**
- * The dimension lines whose labels can be written without overlapping one another, primary lines
- * first (then in order). Labels are estimated at `charWidth` px per character, `lineHeight` tall.
+ * The dimension lines whose labels can be written without overlapping one another: primary lines
+ * first, smallest margin first among them. Labels are estimated at `charWidth` px per character, `lineHeight` tall.
  */
 export function labelledLines(lines: readonly DimensionLine[], charWidth = 6.2, lineHeight = 13): DimensionLine[] {
 	const boxes: { l: number; r: number; t: number; b: number }[] = [];
 	const out: DimensionLine[] = [];
-	const ordered = [...lines].sort((a, b) => Number(b.primary) - Number(a.primary));
+	// primary first, and among them the smallest margin (the one the worst case reports)
+	const ordered = [...lines].sort((a, b) => Number(b.primary) - Number(a.primary) || Math.abs(a.value) - Math.abs(b.value));
 	for (const line of ordered) {
 		const w = line.label.length * charWidth;
 		const l = line.labelAnchor === 'start' ? line.labelX : line.labelX - w;
