@@ -115,6 +115,7 @@ describe('the loop page', () => {
 			.poll(async () => range.innerText(), { timeout: 60_000 })
 			.toMatch(/^Meets every target from/);
 		const words = await range.innerText();
+		expect(await page.getByTestId('loop-analysis').getAttribute('data-range-source')).toBe('worker');
 		expect(await page.getByTestId('meets-band').count()).toBeGreaterThan(0);
 		const whatIf = page.getByTestId('what-if-verdict');
 		expect(await whatIf.locator('[data-verdict]').first().getAttribute('data-verdict')).toBe(
