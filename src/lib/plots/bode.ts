@@ -54,7 +54,7 @@ export interface BodeOptions {
 	phaseDomainDeg?: [number, number];
 	/** Largest magnitude span shown when fitting (dB, default 160) — deep notches get clipped. */
 	maxMagnitudeSpanDb?: number;
-	/** Largest phase span shown when fitting (deg, default 1080) — long delays get clipped. */
+	/** Largest phase span shown when fitting (deg, default 540) — the roll-off far past the crossovers gets clipped, the top kept. */
 	maxPhaseSpanDeg?: number;
 }
 
@@ -329,14 +329,15 @@ export function bodeGeometry(
 	const phDomain =
 		options.phaseDomainDeg ??
 		(() => {
+			const cap = options.maxPhaseSpanDeg ?? 540;
 			const [lo, hi] = fitDomain(
 				all.map((p) => p.phaseDeg),
 				phaseEnds,
-				options.maxPhaseSpanDeg ?? 1080,
+				cap,
 				15
 			);
 			const step = pickStep(hi - lo, [45, 90, 180, 360], 5);
-			return niceDomain(lo, hi, step);
+			return niceDomain(lo, hi, step, Math.max(cap, step));
 		})();
 	const phPanelH = phasePanel.bottom - phasePanel.top;
 	const phStep = pickStep(

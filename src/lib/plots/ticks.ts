@@ -103,13 +103,14 @@ export function stepTicks(
 	return out;
 }
 
-/** Round a domain outwards to multiples of `step`. */
-export function niceDomain(lo: number, hi: number, step: number): [number, number] {
+/** Round a domain outwards to multiples of `step`, then pull the bottom in while it spans more than `cap`. */
+export function niceDomain(lo: number, hi: number, step: number, cap = Infinity): [number, number] {
 	let a = Math.floor(lo / step) * step;
 	let b = Math.ceil(hi / step) * step;
 	if (a === b) {
 		a -= step;
 		b += step;
 	}
+	while (b - a > cap + 1e-9 && b - a > step) a += step;
 	return [a, b];
 }

@@ -164,6 +164,9 @@ describe('bodeGeometry', () => {
 			const ph = valueAt(sampleResponse(m)[0].points, p.hz, 'phaseDeg');
 			expect(ph).toBeCloseTo(p.criticalDeg, 4);
 		}
+		// the phase axis keeps at most 540° (the default cap), from the top, with the first crossover
+		expect(g.phase.domain[1] - g.phase.domain[0]).toBeLessThanOrEqual(540);
+		expect(g.phaseCrossovers[0].inside).toBe(true);
 		// only the crossover the upper gain margin comes from is primary (labelled in a crowd)
 		expect(g.gainMarginLines.filter((l) => l.primary).map((l) => l.hz)).toEqual([
 			r.cases[0].upperGainMarginHz
