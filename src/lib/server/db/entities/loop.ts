@@ -52,7 +52,6 @@ export const LoopSchema = defineEntity({
 		{ name: 'loop_failing_criteria_gin', properties: ['failingCriteria'], type: 'gin' },
 		{ name: 'loop_verdict_changed_at_index', properties: ['verdictChangedAt'] },
 		{ name: 'loop_updated_at_index', properties: ['updatedAt'] },
-		{ name: 'loop_wc_phase_margin_deg_index', properties: ['wcPhaseMarginDeg'] },
 		{ name: 'loop_wc_upper_gain_margin_db_index', properties: ['wcUpperGainMarginDb'] },
 		{ name: 'loop_wc_delay_margin_s_index', properties: ['wcDelayMarginS'] },
 		{ name: 'loop_wc_modulus_margin_index', properties: ['wcModulusMargin'] },

@@ -7,7 +7,6 @@ export class Migration20261202033800_dashboard extends Migration {
     this.addSql(`create index "loop_failing_criteria_gin" on "loop" using gin ("failing_criteria");`);
     this.addSql(`create index "loop_verdict_changed_at_index" on "loop" ("verdict_changed_at");`);
     this.addSql(`create index "loop_updated_at_index" on "loop" ("updated_at");`);
-    this.addSql(`create index "loop_wc_phase_margin_deg_index" on "loop" ("wc_phase_margin_deg");`);
     this.addSql(`create index "loop_wc_upper_gain_margin_db_index" on "loop" ("wc_upper_gain_margin_db");`);
     this.addSql(`create index "loop_wc_delay_margin_s_index" on "loop" ("wc_delay_margin_s");`);
     this.addSql(`create index "loop_wc_modulus_margin_index" on "loop" ("wc_modulus_margin");`);
@@ -23,7 +22,6 @@ export class Migration20261202033800_dashboard extends Migration {
     this.addSql(`drop index "loop_failing_criteria_gin";`);
     this.addSql(`drop index "loop_verdict_changed_at_index";`);
     this.addSql(`drop index "loop_updated_at_index";`);
-    this.addSql(`drop index "loop_wc_phase_margin_deg_index";`);
     this.addSql(`drop index "loop_wc_upper_gain_margin_db_index";`);
     this.addSql(`drop index "loop_wc_delay_margin_s_index";`);
     this.addSql(`drop index "loop_wc_modulus_margin_index";`);
