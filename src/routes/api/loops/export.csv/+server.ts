@@ -11,7 +11,8 @@ export const GET = (async (event) =>
 		requireScope(event, 'read');
 		const filters = loopFiltersFrom(event.url.searchParams);
 		const { rows, stream } = await exportLoopsCsv(await forkEm(), filters);
-		const stamp = new Date().toISOString().slice(0, 16).replace(/[:T]/g, '');
+		// headroom-loops-20261202-0815.csv (UTC)
+		const stamp = new Date().toISOString().slice(0, 16).replace(/[-:]/g, '').replace('T', '-');
 		return new Response(stream, {
 			headers: {
 				'content-type': 'text/csv; charset=utf-8',
