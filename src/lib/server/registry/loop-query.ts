@@ -41,8 +41,6 @@ export interface LoopFilters {
 	dir?: 'asc' | 'desc';
 }
 
-/** The query parameters that filter (not sort or page): a dashboard link keeps exactly these. */
-export const FILTER_PARAMS = ['q', 'product', 'class', 'owner', 'verdict', 'failing', 'tag', 'changedSince', 'archived'] as const;
 
 // A date (midnight UTC) or a date-time with seconds optional and a zone (Z or ±hh:mm) optional.
 const ISO = /^\d{4}-\d{2}-\d{2}(?:[T ]\d{2}:\d{2}(?::\d{2}(?:\.\d{1,9})?)?(?:Z|[+-]\d{2}:?\d{2})?)?$/;
@@ -79,17 +77,6 @@ export function loopFiltersFrom(params: URLSearchParams): LoopFilters {
 		sort: pick('sort', LOOP_SORTS),
 		dir: pick('dir', ['asc', 'desc'] as const)
 	};
-}
-
-/** The filters back as query parameters (for links: the report, the export, a count). */
-export function filterQuery(f: LoopFilters): URLSearchParams {
-	const out = new URLSearchParams();
-	for (const name of FILTER_PARAMS) {
-		const v = f[name];
-		if (v === undefined) continue;
-		out.set(name, v instanceof Date ? v.toISOString() : v);
-	}
-	return out;
 }
 
 export const FROM = `from loop l
