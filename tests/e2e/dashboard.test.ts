@@ -38,8 +38,8 @@ describe('compliance dashboard', () => {
 		await expect(page.getByTestId('verdict-counts').innerText()).resolves.toMatch(/Non-compliant/);
 		await snap(page, 'dashboard-desktop');
 
-		await page.getByLabel('Class').selectOption(cls.key);
-		await page.getByLabel('Verdict').selectOption('noncompliant');
+		await page.getByLabel('Class', { exact: true }).selectOption(cls.key);
+		await page.getByLabel('Verdict', { exact: true }).selectOption('noncompliant');
 		await page.getByRole('button', { name: 'Apply filters' }).click();
 		await page.waitForURL((u) => u.searchParams.get('class') === cls.key && u.searchParams.get('verdict') === 'noncompliant');
 		await viewSettled(page);
@@ -74,11 +74,11 @@ describe('compliance dashboard', () => {
 		await page.waitForURL((u) => u.searchParams.get('verdict') === 'noncompliant' && !u.searchParams.has('sort'));
 		await viewSettled(page);
 		expect(await rowKeys(page)).toEqual(filteredKeys);
-		expect(await page.getByLabel('Class').inputValue()).toBe(cls.key);
+		expect(await page.getByLabel('Class', { exact: true }).inputValue()).toBe(cls.key);
 		await page.goBack();
 		await page.waitForURL(baseUrl() + '/');
 		await viewSettled(page);
-		expect(await page.getByLabel('Class').inputValue()).toBe('');
+		expect(await page.getByLabel('Class', { exact: true }).inputValue()).toBe('');
 		expect((await rowKeys(page)).length).toBeGreaterThan(filteredKeys.length);
 
 		// A count is a filter link too.
@@ -108,7 +108,7 @@ describe('compliance dashboard', () => {
 
 		await page.goto(`${baseUrl()}/?changedSince=last-week`);
 		await expect(page.getByRole('alert').innerText()).resolves.toMatch(/changedSince must be an ISO date/);
-		expect(await page.getByLabel('Changed since').getAttribute('aria-invalid')).toBe('true');
+		expect(await page.getByLabel('Changed since', { exact: true }).getAttribute('aria-invalid')).toBe('true');
 		await snap(page, 'dashboard-phone-bad-filter');
 		await context.close();
 	});

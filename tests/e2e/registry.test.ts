@@ -18,6 +18,8 @@ describe('registry in the browser', () => {
 	it('lets a lead change the phase-margin target of a class and shows the new version in the history', async () => {
 		const { context, page } = await signedIn('lead@headroom.test');
 		await page.getByRole('navigation', { name: 'Main' }).first().getByRole('link', { name: 'Classes' }).click();
+		// The dashboard links classes too: wait until the classes page is the one on screen.
+		await page.waitForURL(/\/classes$/);
 		await page.getByRole('link', { name: 'Current loop' }).click();
 		await page.waitForURL(/\/classes\/current$/);
 		const pm = page.getByLabel('Minimum phase margin (°)');
