@@ -76,6 +76,18 @@ function templates(n = 500) {
 	);
 }
 
+/** Filtered + sorted pages of the loop list, as a dashboard user asks for them. */
+function filterMixes(): [string, string][] {
+	const since = new Date(Date.now() - 14 * 86_400_000).toISOString().slice(0, 10);
+	return [
+		['non-compliant speed, by PM', '/api/loops?verdict=noncompliant&class=speed&sort=phaseMargin&dir=asc&pageSize=50'],
+		['one product short on GM, by shortfall', '/api/loops?product=tarn-af40&failing=upperGainMargin&sort=shortfall&dir=desc&pageSize=50'],
+		['changed in 14 days, by update', `/api/loops?changedSince=${since}&sort=updatedAt&dir=desc&pageSize=50`],
+		['owner + tag + text, by modulus', '/api/loops?owner=engineer07%40bench.test&tag=rig-b&q=ax0&sort=modulusMargin&pageSize=50'],
+		['all loops, page 120, by delay', '/api/loops?sort=delayMargin&dir=desc&page=120&pageSize=50']
+	];
+}
+
 async function seed(env: NodeJS.ProcessEnv) {
 	const { MikroORM } = await import('@mikro-orm/postgresql');
 	const { ormOptions } = await import('../src/lib/server/db/options');
@@ -169,6 +181,21 @@ async function seed(env: NodeJS.ProcessEnv) {
 		        (select string_agg(verdict || ' ' || n, ', ' order by n desc) from (select verdict, count(*) n from loop group by verdict) v) as verdicts`
 	);
 	console.log(`seeded ${ids.length} loops, ${counts.revisions} revisions in ${(seeded / 1000).toFixed(1)} s; judged in ${(judged / 1000).toFixed(1)} s (${counts.verdicts})`);
+	// The database's own share of each mix, without HTTP, auth or contention from the load.
+	const { listQuery, loopFiltersFrom } = await import('../src/lib/server/registry/loops');
+	const { pagingFrom, offsetOf } = await import('../src/lib/server/registry/common');
+	console.log('\nSQL of each mix alone (EXPLAIN ANALYZE execution time, median of 5):');
+	for (const [name, path] of filterMixes()) {
+		const params = new URL(path, 'http://x').searchParams;
+		const paging = pagingFrom(params);
+		const q = listQuery(loopFiltersFrom(params), paging.pageSize, offsetOf(paging));
+		const times: number[] = [];
+		for (let i = 0; i < 5; i++) {
+			const [row] = await conn.execute<{ 'QUERY PLAN': [{ 'Execution Time': number }] }[]>(`explain (analyze, format json) ${q.sql}`, q.params);
+			times.push(row['QUERY PLAN'][0]['Execution Time']);
+		}
+		console.log(`  ${name.padEnd(38)} ${ms(pct(times, 0.5))}`);
+	}
 	await orm.close(true);
 	return { token, email: lead.email };
 }
@@ -203,7 +230,7 @@ async function loadMix(origin: string, token: string, name: string, path: string
 	const errors = result.errors + result.timeouts + result.non2xx;
 	const p95 = pct(times, 0.95);
 	console.log(
-		`  ${name.padEnd(34)} p50 ${ms(pct(times, 0.5))}  p95 ${ms(p95)}  p99 ${ms(pct(times, 0.99))}  ` +
+		`  ${name.padEnd(38)} p50 ${ms(pct(times, 0.5))}  p95 ${ms(p95)}  p99 ${ms(pct(times, 0.99))}  ` +
 			`${result.requests.average.toFixed(0)} req/s  errors ${errors}  → p95 ${ratio(p95, 50)}`
 	);
 	return { p95, errors };
@@ -263,14 +290,7 @@ async function main() {
 	for (let i = 0; i < 20; i++) await (await fetch(`${origin}/api/loops?pageSize=5`, { headers: { authorization: `Bearer ${token}` } })).text();
 	for (let i = 0; i < 5; i++) await (await fetch(`${origin}/`, { headers: { cookie } })).text();
 
-	const since = new Date(Date.now() - 14 * 86_400_000).toISOString().slice(0, 10);
-	const mixes: [string, string][] = [
-		['non-compliant speed, by PM', '/api/loops?verdict=noncompliant&class=speed&sort=phaseMargin&dir=asc&pageSize=50'],
-		['one product short on GM, by shortfall', '/api/loops?product=tarn-af40&failing=upperGainMargin&sort=shortfall&dir=desc&pageSize=50'],
-		['changed in 14 days, by update', `/api/loops?changedSince=${since}&sort=updatedAt&dir=desc&pageSize=50`],
-		['owner + tag + text, by modulus', '/api/loops?owner=engineer07%40bench.test&tag=rig-b&q=ax0&sort=modulusMargin&pageSize=50'],
-		['all loops, page 120, by delay', '/api/loops?sort=delayMargin&dir=desc&page=120&pageSize=50']
-	];
+	const mixes = filterMixes();
 	console.log(`\nGET /api/loops, ${CONNECTIONS} connections, ${SECONDS} s per mix (target p95 ≤ 50 ms):`);
 	const runs = [];
 	for (const [name, path] of mixes) runs.push(await loadMix(origin, token, name, path));
