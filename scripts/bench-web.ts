@@ -10,15 +10,12 @@
  * Environment: BENCH_LOOPS (10000), BENCH_REVISIONS_PER_LOOP (10), BENCH_SECONDS (8 per mix),
  * BENCH_RENDERS (30).
  */
-import { chmodSync, mkdtempSync, rmSync } from 'node:fs';
-import { tmpdir } from 'node:os';
-import { join, resolve } from 'node:path';
+import { resolve } from 'node:path';
 import autocannon from 'autocannon';
-import { startCluster } from './lib/postgres';
-import { startS3Fake, s3Env } from './lib/s3';
+import { s3Env } from './lib/s3';
 import { freePort, HOST } from './lib/ports';
-import { Supervisor } from './lib/processes';
 import { randomSecret } from './lib/secrets';
+import { pct, runBench, type BenchServices } from './lib/bench';
 import { appEnv, appProcess, override } from './lib/app';
 import { buildIfStale } from './lib/build';
 import { waitForHttp } from './lib/wait';
@@ -26,10 +23,6 @@ import { mulberry32 } from './lib/loop-generator';
 import { syntheticResult } from './lib/synthetic-margins';
 
 const root = resolve(import.meta.dirname, '..');
-const temp = mkdtempSync(join(tmpdir(), 'headroom-bench-web-'));
-// PostgreSQL runs as its own user and must reach its data folder inside.
-chmodSync(temp, 0o755);
-const supervisor = new Supervisor();
 const LOOPS = Number(process.env.BENCH_LOOPS ?? 10_000);
 const PER_LOOP = Number(process.env.BENCH_REVISIONS_PER_LOOP ?? 10);
 const SECONDS = Number(process.env.BENCH_SECONDS ?? 8);
@@ -37,10 +30,6 @@ const RENDERS = Number(process.env.BENCH_RENDERS ?? 30);
 const CONNECTIONS = 20;
 const PASSWORD = 'bench-password-1';
 
-const pct = (xs: number[], p: number) => {
-	const s = [...xs].sort((a, b) => a - b);
-	return s[Math.min(s.length - 1, Math.floor(p * s.length))];
-};
 const ms = (v: number) => `${v.toFixed(1)} ms`;
 const ratio = (figure: number, target: number) => `${(figure / target).toFixed(2)}× target`;
 
@@ -256,17 +245,10 @@ async function renders(origin: string, cookie: string, path: string) {
 	);
 }
 
-async function main() {
-	const pg = await startCluster({ dataDir: join(temp, 'pg'), port: await freePort(), logFile: join(temp, 'pg.log'), superuserPassword: randomSecret(), throwaway: true });
-	supervisor.defer('postgres', () => pg.stop(), () => pg.stopSync());
-	await pg.createDatabase('bench');
-	const s3Port = await freePort();
-	await startS3Fake(supervisor, { root, port: s3Port, dir: join(temp, 's3'), bucket: 'headroom' });
-	const url = new URL(pg.adminUrl);
-	url.pathname = '/bench';
+async function main({ supervisor, pg, s3Port, databaseUrl }: BenchServices) {
 	const webPort = await freePort();
 	const env = appEnv({
-		databaseUrl: url.toString(),
+		databaseUrl,
 		s3Port,
 		bucket: 'headroom',
 		// No mail is sent by the read paths measured here.
@@ -305,12 +287,4 @@ async function main() {
 	console.log('\n(2 CPU cores shared by the database, the web server and the load generator.)');
 }
 
-main()
-	.catch((e) => {
-		console.error(e);
-		process.exitCode = 1;
-	})
-	.finally(async () => {
-		await supervisor.stopAll();
-		rmSync(temp, { recursive: true, force: true });
-	});
+runBench('bench-web', root, main);

@@ -79,10 +79,11 @@ export function loopFiltersFrom(params: URLSearchParams): LoopFilters {
 	};
 }
 
-export const FROM = `from loop l
-	join product p on p.id = l.product_id
+/** The tables a loop row is listed, filtered and sorted with (aliases l, p, c, u). */
+export const JOINS = `join product p on p.id = l.product_id
 	join loop_class c on c.id = l.loop_class_id
 	join app_user u on u.id = l.owner_id`;
+export const FROM = `from loop l ${JOINS}`;
 
 const like = (q: string) => `%${q.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
 
