@@ -8,6 +8,7 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { judge, type DeviationInput, type Judgement, type RevisionState } from '../../compliance/judge';
 import { TARGET_FIELDS, type Criterion, type Targets } from '../../compliance/criteria';
+import { shortCriteria, worstShortfall } from '../../compliance/shortfall';
 import type { MarginsResult, WorstCase } from '../../margins/types';
 import { TARGET_KEYS } from '../db/entities/targets';
 import { VERDICT_RANK } from '../db/entities/verdict-event';
@@ -145,7 +146,17 @@ async function judgeBatch(em: EntityManager, ids: string[], cause: JudgeCause, n
 			now
 		});
 		const w = worstColumns(loop.result?.worstCase);
-		updates.push({ id: loop.id, verdict: j.verdict, detail: j, revision_id: loop.revision_id, requirement_id: requirement?.id ?? null, ...w });
+		updates.push({
+			id: loop.id,
+			verdict: j.verdict,
+			detail: j,
+			revision_id: loop.revision_id,
+			requirement_id: requirement?.id ?? null,
+			...w,
+			// The dashboard filters on these through a GIN index and sorts on the worst shortfall.
+			short: shortCriteria(j),
+			worst: worstShortfall(j)
+		});
 		if (j.verdict !== loop.verdict) {
 			const eventId = crypto.randomUUID();
 			const worse = VERDICT_RANK[j.verdict] > VERDICT_RANK[loop.verdict];
@@ -173,9 +184,10 @@ async function judgeBatch(em: EntityManager, ids: string[], cause: JudgeCause, n
 			`update loop l set verdict = v.verdict, verdict_detail = v.detail, judged_revision_id = v.revision_id,
 			        judged_requirement_id = v.requirement_id, judged_at = ?,
 			        verdict_changed_at = case when l.verdict is distinct from v.verdict then ? else l.verdict_changed_at end,
-			        wc_phase_margin_deg = v.pm, wc_upper_gain_margin_db = v.gm, wc_delay_margin_s = v.dm, wc_modulus_margin = v.mm
+			        wc_phase_margin_deg = v.pm, wc_upper_gain_margin_db = v.gm, wc_delay_margin_s = v.dm, wc_modulus_margin = v.mm,
+			        failing_criteria = array(select jsonb_array_elements_text(v.short)), worst_shortfall = v.worst
 			 from jsonb_to_recordset(?::jsonb) as v(id uuid, verdict text, detail jsonb, revision_id uuid, requirement_id uuid,
-			                                       pm float8, gm float8, dm float8, mm float8)
+			                                       pm float8, gm float8, dm float8, mm float8, short jsonb, worst float8)
 			 where l.id = v.id`,
 			[now, now, JSON.stringify(updates)],
 			'run',
