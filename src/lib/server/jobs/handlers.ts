@@ -4,6 +4,7 @@ import { computeRevision } from '../revisions/compute';
 import { reconcileStorage } from '../revisions/reconcile';
 import { notifyVerdict } from '../verdicts/notify';
 import { expireDeviations, rejudgeClass, rejudgeLoops } from '../verdicts/rejudge';
+import { renderReport } from '../reports/render';
 import {
 	QUEUES,
 	SCHEDULES,
@@ -12,7 +13,8 @@ import {
 	type PingData,
 	type QueueName,
 	type RejudgeClassData,
-	type RejudgeLoopsData
+	type RejudgeLoopsData,
+	type RenderReportData
 } from './queues';
 
 const COMPUTE_LOOPS = 4;
@@ -75,5 +77,10 @@ export async function registerHandlers(boss: PgBoss, options: { origin: string }
 	);
 	await boss.work(QUEUES.expireDeviations, { pollingIntervalSeconds: 5 }, each(boss, QUEUES.expireDeviations, async () => expireDeviations(await forkEm())));
 	await boss.work(QUEUES.reconcileStorage, { pollingIntervalSeconds: 5 }, each(boss, QUEUES.reconcileStorage, async () => reconcileStorage(await forkEm())));
+	await boss.work<RenderReportData>(
+		QUEUES.renderReport,
+		{ pollingIntervalSeconds: 1 },
+		each(boss, QUEUES.renderReport, async ({ reportId }) => renderReport(await forkEm(), reportId))
+	);
 	for (const [name, cron] of Object.entries(SCHEDULES)) await boss.schedule(name, cron);
 }

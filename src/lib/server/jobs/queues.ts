@@ -12,7 +12,8 @@ export const QUEUES = {
 	rejudgeLoops: 'verdict.rejudge-loops',
 	notifyVerdict: 'verdict.notify',
 	expireDeviations: 'deviation.expire',
-	reconcileStorage: 'storage.reconcile'
+	reconcileStorage: 'storage.reconcile',
+	renderReport: 'report.render'
 } as const;
 
 export type QueueName = (typeof QUEUES)[keyof typeof QUEUES];
@@ -26,7 +27,9 @@ export const QUEUE_OPTIONS: Record<QueueName, Omit<PgBoss.Queue, 'name'>> = {
 	// Mail outages can last: keep trying for about a day before giving up (the outbox row stays).
 	[QUEUES.notifyVerdict]: { retryLimit: 30, retryDelay: 30, retryBackoff: true, expireInSeconds: 60 },
 	[QUEUES.expireDeviations]: { retryLimit: 2, retryDelay: 10, expireInSeconds: 300 },
-	[QUEUES.reconcileStorage]: { retryLimit: 2, retryDelay: 10, expireInSeconds: 600 }
+	[QUEUES.reconcileStorage]: { retryLimit: 2, retryDelay: 10, expireInSeconds: 600 },
+	// A render that failed (storage down, a model gone) is tried twice more; the row shows the message.
+	[QUEUES.renderReport]: { retryLimit: 2, retryDelay: 5, retryBackoff: true, expireInSeconds: 600 }
 };
 
 /** Cron schedules of the periodic jobs (run by whichever worker's clock fires first). */
@@ -52,4 +55,7 @@ export interface RejudgeLoopsData {
 }
 export interface NotifyVerdictData {
 	eventId: string;
+}
+export interface RenderReportData {
+	reportId: string;
 }

@@ -11,13 +11,16 @@ import { DeviationSchema } from './deviation';
 import { RevisionSchema } from './revision';
 import { MarginReportSchema } from './margin-report';
 import { VerdictEventSchema } from './verdict-event';
+import { ReportExportSchema } from './report-export';
 
 /** Every entity the ORM knows; migrations are generated from this list. */
 export const entities = [UserSchema, AuditEventSchema, OneTimeLinkSchema, ApiTokenSchema, SignInAttemptSchema,
 	// registry
 	ProductSchema, LoopClassSchema, RequirementSchema, LoopSchema, DeviationSchema,
 	// revisions and verdicts
-	RevisionSchema, MarginReportSchema, VerdictEventSchema];
+	RevisionSchema, MarginReportSchema, VerdictEventSchema,
+	// reports
+	ReportExportSchema];
 
 export { UserSchema, ROLES, type Role, type User } from './user';
 export { AuditEventSchema, type AuditEvent } from './audit-event';
@@ -33,3 +36,4 @@ export { TARGET_KEYS, type TargetKey } from './targets';
 export { RevisionSchema, REVISION_STATES, type Revision, type RevisionState } from './revision';
 export { MarginReportSchema, type MarginReport } from './margin-report';
 export { VerdictEventSchema, VERDICT_RANK, type VerdictEvent } from './verdict-event';
+export { ReportExportSchema, REPORT_STATES, type ReportExport, type ReportState, type FrozenLoopEvidence } from './report-export';

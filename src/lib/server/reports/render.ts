@@ -1,0 +1,123 @@
+/**
+ * The render-report job: claim the export, gather and freeze what it shows, render the PDF or
+ * CSV, store the file under the server's key, mark it ready. Idempotent: a ready export is left
+ * alone, and a retried job renders from scratch and overwrites the same object key. A failure
+ * stores its message (state `failed`, shown on the reports page) and is rethrown, so pg-boss
+ * retries it; a later attempt that succeeds turns the export ready.
+ */
+import { createHash } from 'node:crypto';
+import type { EntityManager } from '@mikro-orm/postgresql';
+import { ENGINE_VERSION, parseModelText, sampleResponse, type CaseResponse } from '../../margins';
+import type { ReportFilters, ReportFormat } from '../../reports/filters';
+import { renderCsv } from '../../reports/csv';
+import type { ReportData, ReportLoop } from '../../reports/types';
+import { getObjectBytes, putObject } from '../storage/s3';
+import type { FrozenLoopEvidence } from '../db/entities';
+import { collectLoops, requirementsInForce } from './collect';
+import { needsPlotPage, renderPdf, verdictCounts } from './pdf';
+import { CONTENT_TYPES } from './exports';
+
+export type RenderOutcome = 'ready' | 'skipped';
+
+interface Claimed {
+	id: string;
+	format: ReportFormat;
+	filters: ReportFilters;
+	object_key: string;
+	user_name: string;
+	user_email: string;
+}
+
+/** Move the export to `rendering` in its own short transaction, so the page sees it move. */
+async function claim(em: EntityManager, id: string): Promise<Claimed | null> {
+	const rows = await em.getConnection().execute<Claimed[]>(
+		`update report_export r set state = 'rendering', started_at = now(), finished_at = null, error_message = null, attempts = attempts + 1
+		 from app_user u
+		 where r.id = ? and r.state in ('queued', 'rendering', 'failed') and u.id = r.requested_by_id
+		 returning r.id, r.format, r.filters, r.object_key, u.name as user_name, u.email as user_email`,
+		[id]
+	);
+	return rows[0] ?? null;
+}
+
+/** The judged revision's model, sampled for the plots (a few hundred points per case). */
+export async function sampledResponses(l: ReportLoop, points = 200): Promise<CaseResponse[]> {
+	if (!l.revision) return [];
+	let bytes: Uint8Array;
+	try {
+		bytes = await getObjectBytes(l.revision.objectKey);
+	} catch (error) {
+		const why = error instanceof Error ? error.message : String(error);
+		throw new Error(`Could not read the model of ${l.product.key}/${l.key} revision ${l.revision.number} from storage (${why}).`);
+	}
+	const parsed = parseModelText(new TextDecoder().decode(bytes), l.revision.fileName);
+	if (!parsed.ok) {
+		throw new Error(`The model of ${l.product.key}/${l.key} revision ${l.revision.number} no longer parses: ${parsed.issue.message}.`);
+	}
+	return sampleResponse(parsed.model, { points });
+}
+
+export const evidenceOf = (l: ReportLoop): FrozenLoopEvidence => ({
+	loopId: l.id,
+	loopKey: l.key,
+	productKey: l.product.key,
+	verdict: l.verdict,
+	requirementId: l.requirement?.id ?? null,
+	revisionId: l.revision?.id ?? null,
+	revisionNumber: l.revision?.number ?? null,
+	sha256: l.revision?.sha256 ?? null
+});
+
+/** Gather, freeze and render one report (no storage write): used by the job and the benchmark. */
+export async function buildReport(
+	em: EntityManager,
+	meta: Pick<ReportData, 'id' | 'format' | 'filters' | 'requestedBy'>
+): Promise<{ data: ReportData; bytes: Uint8Array }> {
+	const loops = await collectLoops(em, meta.filters);
+	const data: ReportData = {
+		...meta,
+		generatedAt: new Date().toISOString(),
+		engineVersion: ENGINE_VERSION,
+		requirements: await requirementsInForce(em, loops),
+		loops
+	};
+	if (meta.format === 'csv') return { data, bytes: new TextEncoder().encode(renderCsv(data)) };
+	const responses = new Map<string, CaseResponse[]>();
+	for (const l of loops.filter(needsPlotPage)) responses.set(l.id, await sampledResponses(l));
+	return { data, bytes: await renderPdf({ report: data, responses }) };
+}
+
+export async function renderReport(em: EntityManager, reportId: string): Promise<RenderOutcome> {
+	const row = await claim(em, reportId);
+	if (!row) return 'skipped';
+	const conn = em.getConnection();
+	try {
+		const { data, bytes } = await buildReport(em, {
+			id: row.id,
+			format: row.format,
+			filters: row.filters,
+			requestedBy: { name: row.user_name, email: row.user_email }
+		});
+		await putObject(row.object_key, bytes, CONTENT_TYPES[row.format]);
+		await conn.execute(
+			`update report_export set state = 'ready', finished_at = now(), size_bytes = ?, sha256 = ?, engine_version = ?,
+			        loop_count = ?, verdict_counts = ?::jsonb, requirements = ?::jsonb, evidence = ?::jsonb
+			 where id = ? and state = 'rendering'`,
+			[
+				bytes.byteLength,
+				createHash('sha256').update(bytes).digest('hex'),
+				data.engineVersion,
+				data.loops.length,
+				JSON.stringify(verdictCounts(data.loops)),
+				JSON.stringify(data.requirements),
+				JSON.stringify(data.loops.map(evidenceOf)),
+				row.id
+			]
+		);
+		return 'ready';
+	} catch (error) {
+		const message = (error instanceof Error ? error.message : String(error)).slice(0, 1000) || 'The render failed.';
+		await conn.execute(`update report_export set state = 'failed', finished_at = now(), error_message = ? where id = ?`, [message, row.id]);
+		throw error;
+	}
+}
