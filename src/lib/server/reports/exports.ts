@@ -9,7 +9,7 @@
  */
 import { randomUUID } from 'node:crypto';
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { ProductSchema, LoopClassSchema, ReportExportSchema, UserSchema, type ReportExport } from '../db/entities';
+import { ProductSchema, LoopClassSchema, ReportExportSchema, UserSchema, type ReportExport, type ReportState } from '../db/entities';
 import { Conflict, Invalid, NotFound } from '../errors';
 import { enqueueInTx } from '../jobs/enqueue';
 import { QUEUES } from '../jobs/queues';
@@ -33,7 +33,7 @@ const CONTENT_TYPES: Record<ReportFormat, string> = {
 
 export interface ReportView {
 	id: string;
-	state: ReportExport['state'];
+	state: ReportState;
 	format: ReportFormat;
 	filters: ReportFilters;
 	/** The filters in words, as on the report's cover. */

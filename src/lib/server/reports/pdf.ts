@@ -19,6 +19,7 @@ import { scopeInWords } from '../../reports/filters';
 import type { ReportData, ReportLoop } from '../../reports/types';
 import { actualText, pdfSafe, requiredText, shortfallText, STATUS_WORDS, targetsInWords } from '../../reports/words';
 import { bodeFrames, nyquistFrame, type PlotFrame } from './fallback-plots';
+import { sfntFont } from './woff';
 
 type Doc = PDFKit.PDFDocument;
 
@@ -121,11 +122,17 @@ function heading(doc: Doc, text: string, size = 14) {
 	doc.moveDown(0.3);
 }
 
+/**
+ * Mono only for identifiers without blanks: the space glyph of the Plex Mono .woff subset has
+ * broken outline data that fontkit cannot decode.
+ */
+const monoOk = (v: string) => !/\s/.test(v);
+
 function keyValue(doc: Doc, rows: [string, string, ('mono' | 'sans')?][], labelW = 120) {
 	for (const [k, v, font] of rows) {
 		const y = doc.y;
 		doc.font('sans').fontSize(9).fillColor(SOFT).text(k, MARGIN.left, y, { width: labelW });
-		doc.font(font ?? 'sans').fontSize(9).fillColor(INK).text(T(v), MARGIN.left + labelW, y, { width: CONTENT_W - labelW });
+		doc.font(font === 'mono' && monoOk(v) ? 'mono' : 'sans').fontSize(9).fillColor(INK).text(T(v), MARGIN.left + labelW, y, { width: CONTENT_W - labelW });
 		doc.moveDown(0.25);
 	}
 }
@@ -150,13 +157,14 @@ function cover(doc: Doc, r: ReportData) {
 	heading(doc, 'Verdicts', 12);
 	const counts = verdictCounts(r.loops);
 	const colW = CONTENT_W / 4;
+	const top = doc.y;
 	VERDICTS.forEach((v, i) => {
 		const x = MARGIN.left + (i % 4) * colW;
-		const y = doc.y + Math.floor(i / 4) * 22;
+		const y = top + Math.floor(i / 4) * 22;
 		verdictLabel(doc, v, x, y, 9);
 		doc.font('bold').fontSize(9).fillColor(INK).text(String(counts[v]), x + colW - 40, y, { width: 30, align: 'right', lineBreak: false });
 	});
-	doc.y += 2 * 22 + 6;
+	doc.y = top + 2 * 22 + 6;
 	doc.x = MARGIN.left;
 	heading(doc, 'Requirement versions in force', 12);
 	if (!r.requirements.length) doc.font('sans').fontSize(9).fillColor(SOFT).text('No loop class in scope has targets yet.');
@@ -184,14 +192,14 @@ function cover(doc: Doc, r: ReportData) {
 
 const MAIN: Criterion[] = ['phaseMargin', 'upperGainMargin', 'delayMarginSeconds', 'modulusMargin'];
 const COLS = [
-	{ title: 'Loop', w: 118 },
-	{ title: 'Class · version', w: 72 },
-	{ title: 'Rev', w: 24 },
-	{ title: 'Verdict', w: 70 },
-	{ title: 'Phase margin', w: 50 },
-	{ title: 'Gain margin', w: 50 },
-	{ title: 'Delay margin', w: 50 },
-	{ title: 'Modulus', w: 65 - 0 }
+	{ title: 'Loop', w: 100 },
+	{ title: 'Class · version', w: 60 },
+	{ title: 'Rev', w: 20 },
+	{ title: 'Verdict', w: 62 },
+	{ title: 'Phase margin', w: 44 },
+	{ title: 'Gain margin', w: 44 },
+	{ title: 'Delay margin', w: 44 },
+	{ title: 'Modulus', w: 44 }
 ];
 const LAST_W = CONTENT_W - COLS.reduce((s, c) => s + c.w, 0);
 const ALL_COLS = [...COLS, { title: 'Other criteria', w: LAST_W }];
@@ -199,13 +207,14 @@ const ROW_PAD = 3;
 
 function tableHeader(doc: Doc) {
 	const y = doc.y;
-	doc.rect(MARGIN.left, y, CONTENT_W, 16).fill('#eef1f5');
+	// Two lines fit: "Phase / margin" wraps inside its column.
+	doc.rect(MARGIN.left, y, CONTENT_W, 22).fill('#eef1f5');
 	let x = MARGIN.left;
 	for (const c of ALL_COLS) {
-		doc.font('bold').fontSize(7).fillColor(SOFT).text(c.title, x + 3, y + 5, { width: c.w - 6, lineBreak: false });
+		doc.font('bold').fontSize(7).fillColor(SOFT).text(c.title, x + 3, y + 3, { width: c.w - 6, height: 18 });
 		x += c.w;
 	}
-	doc.y = y + 16;
+	doc.y = y + 22;
 }
 
 function cellCriterion(c: CriterionResult | undefined): { top: string; bottom: string; fail: boolean } {
@@ -433,7 +442,6 @@ export async function renderPdf({ report, responses }: PdfInput): Promise<Uint8A
 		size: 'A4',
 		margins: MARGIN,
 		bufferPages: true,
-		font: FONTS.sans,
 		info: {
 			Title: `Headroom compliance report — ${pdfSafe(scopeInWords(report.filters))}`,
 			Author: pdfSafe(report.requestedBy.name),
@@ -441,9 +449,12 @@ export async function renderPdf({ report, responses }: PdfInput): Promise<Uint8A
 			Creator: 'Headroom'
 		}
 	});
-	doc.registerFont('sans', FONTS.sans);
-	doc.registerFont('bold', FONTS.bold);
-	doc.registerFont('mono', FONTS.mono);
+	doc.registerFont('sans', sfntFont(FONTS.sans));
+	doc.registerFont('bold', sfntFont(FONTS.bold));
+	doc.registerFont('mono', sfntFont(FONTS.mono));
+	// Not as the constructor's default font: pdfkit would then cache the face under its own name
+	// only, and open (parse) the font file again on every doc.font('sans').
+	doc.font('sans');
 	const chunks: Buffer[] = [];
 	doc.on('data', (c: Buffer) => chunks.push(c));
 	const done = new Promise<void>((resolve, reject) => {
