@@ -1,2 +1,3 @@
 export * from './criteria';
 export * from './judge';
+export * from './shortfall';

@@ -64,3 +64,20 @@ export function parseCsv(text: string): CsvRecord[] {
 	if (field !== '' || fields.length) endRecord();
 	return records;
 }
+
+/**
+ * One CSV record (RFC 4180, CRLF). Text that a spreadsheet would run as a formula (=, +, -, @ at
+ * the start) gets a leading apostrophe; numbers are passed as numbers and left alone.
+ */
+export function csvRow(fields: (string | number | null | undefined)[]): string {
+	return (
+		fields
+			.map((f) => {
+				if (f === null || f === undefined) return '';
+				if (typeof f === 'number') return Number.isFinite(f) ? String(f) : '';
+				const safe = /^[=+\-@\t\r]/.test(f) ? `'${f}` : f;
+				return /[",\r\n]/.test(safe) ? `"${safe.replace(/"/g, '""')}"` : safe;
+			})
+			.join(',') + '\r\n'
+	);
+}

@@ -9,7 +9,8 @@ import { LoopClassSchema, LoopSchema, ProductSchema, UserSchema, type Loop } fro
 import { atLeast } from '../../auth/roles';
 import { Conflict, Forbidden, Invalid, NotFound } from '../errors';
 import { loopPatchSchema, loopSchema } from '../../registry/schemas';
-import { VERDICTS, type Verdict } from '../../compliance/judge';
+import type { CriterionResult, Judgement, Verdict } from '../../compliance/judge';
+import { FROM, orderOf, whereOf, type LoopFilters } from './loop-query';
 import { demandRole, fromDbError, iso, isUuid, offsetOf, parseInput, userRef, type Actor, type PageOf, type Paging, type UserRef } from './common';
 import { loopSnapshot, recordAudit } from './audit';
 import { findOwner } from './people';
@@ -48,74 +49,112 @@ export const loopView = (l: Loop, activeDeviations = 0): LoopView => ({
 	updatedAt: l.updatedAt.toISOString()
 });
 
-export const LOOP_SORTS = ['key', 'name', 'product', 'class', 'owner', 'verdict', 'updatedAt'] as const;
-export type LoopSort = (typeof LOOP_SORTS)[number];
+export { LOOP_SORTS, loopFiltersFrom, type LoopFilters, type LoopSort } from './loop-query';
 
-export interface LoopFilters {
-	q?: string;
-	product?: string;
-	class?: string;
-	owner?: string;
-	verdict?: Verdict;
-	tag?: string;
-	archived?: 'active' | 'archived' | 'all';
-	sort?: LoopSort;
-	dir?: 'asc' | 'desc';
+/** A row of the loop list: the loop, its worst-case margins and every criterion it was judged on. */
+export interface LoopListItem extends LoopView {
+	/** Worst case over operating cases of the latest computed revision; null = none (or unbounded). */
+	worstCase: { phaseMarginDeg: number | null; upperGainMarginDb: number | null; delayMarginS: number | null; modulusMargin: number | null };
+	/** Each target of the class against its actual value, with the shortfall (from the judgement). */
+	criteria: CriterionResult[];
+	/** Criteria short of their target, covered by a deviation or not. */
+	failing: string[];
+	/** The largest shortfall as a fraction of its target (0.1 = 10 % short); null when none. */
+	worstShortfall: number | null;
+	judgedAt: string | null;
+	verdictChangedAt: string | null;
 }
 
-/** Filters from a query string; an unknown sort or verdict is a 400 naming the parameter. */
-export function loopFiltersFrom(params: URLSearchParams): LoopFilters {
-	const text = (name: string) => params.get(name)?.trim() || undefined;
-	const pick = <T extends string>(name: string, allowed: readonly T[]): T | undefined => {
-		const v = text(name);
-		if (v === undefined) return undefined;
-		if (!(allowed as readonly string[]).includes(v)) throw new Invalid(`${name} must be one of ${allowed.join(', ')}.`, name);
-		return v as T;
-	};
+interface ListRow {
+	id: string;
+	key: string;
+	name: string;
+	tags: string[];
+	note: string;
+	verdict: Verdict;
+	archived_at: string | null;
+	created_at: string;
+	updated_at: string;
+	verdict_detail: Judgement | null;
+	judged_at: string | null;
+	verdict_changed_at: string | null;
+	wc_phase_margin_deg: number | null;
+	wc_upper_gain_margin_db: number | null;
+	wc_delay_margin_s: number | null;
+	wc_modulus_margin: number | null;
+	failing_criteria: string[];
+	worst_shortfall: number | null;
+	product_id: string;
+	product_key: string;
+	product_name: string;
+	class_id: string;
+	class_key: string;
+	class_name: string;
+	owner_id: string;
+	owner_name: string;
+	owner_email: string;
+	total?: number;
+}
+
+const LIST_COLUMNS = `l.id, l.key, l.name, l.tags, l.note, l.verdict, l.archived_at, l.created_at, l.updated_at,
+	l.verdict_detail, l.judged_at, l.verdict_changed_at, l.wc_phase_margin_deg, l.wc_upper_gain_margin_db,
+	l.wc_delay_margin_s, l.wc_modulus_margin, l.failing_criteria, l.worst_shortfall,
+	p.id as product_id, p.key as product_key, p.name as product_name,
+	c.id as class_id, c.key as class_key, c.name as class_name,
+	u.id as owner_id, u.name as owner_name, u.email as owner_email`;
+
+// Raw queries return timestamps as text.
+const isoText = (v: string | Date | null) => (v === null ? null : new Date(v).toISOString());
+
+function listItem(r: ListRow, activeDeviations: number): LoopListItem {
 	return {
-		q: text('q'),
-		product: text('product'),
-		class: text('class'),
-		owner: text('owner'),
-		verdict: pick('verdict', VERDICTS),
-		tag: text('tag'),
-		archived: pick('archived', ['active', 'archived', 'all'] as const),
-		sort: pick('sort', LOOP_SORTS),
-		dir: pick('dir', ['asc', 'desc'] as const)
+		id: r.id,
+		key: r.key,
+		name: r.name,
+		product: { id: r.product_id, key: r.product_key, name: r.product_name },
+		class: { id: r.class_id, key: r.class_key, name: r.class_name },
+		owner: { id: r.owner_id, name: r.owner_name, email: r.owner_email },
+		tags: r.tags,
+		note: r.note,
+		verdict: r.verdict,
+		activeDeviations,
+		archivedAt: isoText(r.archived_at),
+		createdAt: isoText(r.created_at)!,
+		updatedAt: isoText(r.updated_at)!,
+		worstCase: {
+			phaseMarginDeg: r.wc_phase_margin_deg,
+			upperGainMarginDb: r.wc_upper_gain_margin_db,
+			delayMarginS: r.wc_delay_margin_s,
+			modulusMargin: r.wc_modulus_margin
+		},
+		criteria: r.verdict_detail?.criteria ?? [],
+		failing: r.failing_criteria,
+		worstShortfall: r.worst_shortfall,
+		judgedAt: isoText(r.judged_at),
+		verdictChangedAt: isoText(r.verdict_changed_at)
 	};
 }
 
-const like = (q: string) => `%${q.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
+/** Rows of the list in order; `limit` null = every matching row (the export bounds it itself). */
+export async function queryLoops(em: EntityManager, f: LoopFilters, limit: number, offset: number): Promise<LoopListItem[]> {
+	const where = whereOf(f);
+	const rows = await em
+		.getConnection()
+		.execute<ListRow[]>(`select ${LIST_COLUMNS} ${FROM} ${where.sql} ${orderOf(f)} limit ? offset ?`, [...where.params, limit, offset], 'all', em.getTransactionContext());
+	const counts = await activeDeviationCounts(em, rows.map((r) => r.id));
+	return rows.map((r) => listItem(r, counts.get(r.id) ?? 0));
+}
 
-export async function listLoops(em: EntityManager, f: LoopFilters, paging: Paging): Promise<PageOf<LoopView>> {
-	const where: Record<string, unknown> = {};
-	if (f.q) where.$or = [{ key: { $ilike: like(f.q) } }, { name: { $ilike: like(f.q) } }];
-	if (f.product) where.product = { key: f.product };
-	if (f.class) where.loopClass = { key: f.class };
-	if (f.owner) where.owner = isUuid(f.owner) ? f.owner : { email: f.owner.toLowerCase() };
-	if (f.verdict) where.verdict = f.verdict;
-	if (f.tag) where.tags = { $contains: [f.tag] };
-	const archived = f.archived ?? 'active';
-	if (archived !== 'all') where.archivedAt = archived === 'active' ? null : { $ne: null };
-	const dir = f.dir ?? 'asc';
-	const order: Record<LoopSort, object> = {
-		key: { key: dir },
-		name: { name: dir },
-		product: { product: { key: dir } },
-		class: { loopClass: { key: dir } },
-		owner: { owner: { name: dir } },
-		verdict: { verdict: dir },
-		updatedAt: { updatedAt: dir }
-	};
-	const [rows, total] = await em.findAndCount(LoopSchema, where, {
-		populate: ['product', 'loopClass', 'owner'],
-		// Ties broken by product and key so pages never overlap.
-		orderBy: [order[f.sort ?? 'key'], { product: { key: 'asc' } }, { key: 'asc' }, { id: 'asc' }] as never,
-		limit: paging.pageSize,
-		offset: offsetOf(paging)
-	});
-	const counts = await activeDeviationCounts(em, rows.map((l) => l.id));
-	return { items: rows.map((l) => loopView(l, counts.get(l.id) ?? 0)), total, ...paging };
+export async function countLoops(em: EntityManager, f: LoopFilters): Promise<number> {
+	const where = whereOf(f);
+	const [{ n }] = await em.getConnection().execute<{ n: number }[]>(`select count(*)::int as n ${FROM} ${where.sql}`, where.params, 'all', em.getTransactionContext());
+	return n;
+}
+
+/** One page of the list, filtered and sorted in PostgreSQL, with the number of matching loops. */
+export async function listLoops(em: EntityManager, f: LoopFilters, paging: Paging): Promise<PageOf<LoopListItem>> {
+	const [items, total] = await Promise.all([queryLoops(em, f, paging.pageSize, offsetOf(paging)), countLoops(em.fork(), f)]);
+	return { items, total, ...paging };
 }
 
 export async function loopById(em: EntityManager, id: string): Promise<Loop> {

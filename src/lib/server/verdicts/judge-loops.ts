@@ -8,6 +8,7 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { judge, type DeviationInput, type Judgement, type RevisionState } from '../../compliance/judge';
 import { TARGET_FIELDS, type Criterion, type Targets } from '../../compliance/criteria';
+import { shortCriteria, worstShortfall } from '../../compliance/shortfall';
 import type { MarginsResult, WorstCase } from '../../margins/types';
 import { TARGET_KEYS } from '../db/entities/targets';
 import { VERDICT_RANK } from '../db/entities/verdict-event';
@@ -142,7 +143,9 @@ async function judgeBatch(em: EntityManager, ids: string[], cause: JudgeCause, n
 			now
 		});
 		const w = worstColumns(loop.result?.worstCase);
-		updates.push(loop.id, j.verdict, JSON.stringify(j), loop.revision_id, requirement?.id ?? null, w.pm, w.gm, w.dm, w.mm);
+		// Arrays go in as JSON text (see below); the dashboard filters on them through a GIN index.
+		const short = JSON.stringify(shortCriteria(j));
+		updates.push(loop.id, j.verdict, JSON.stringify(j), loop.revision_id, requirement?.id ?? null, w.pm, w.gm, w.dm, w.mm, short, worstShortfall(j));
 		if (j.verdict !== loop.verdict) {
 			const eventId = crypto.randomUUID();
 			const worse = VERDICT_RANK[j.verdict] > VERDICT_RANK[loop.verdict];
@@ -152,13 +155,14 @@ async function judgeBatch(em: EntityManager, ids: string[], cause: JudgeCause, n
 	}
 	const conn = em.getConnection();
 	const ctx = em.getTransactionContext();
-	const rows = loops.map(() => '(?::uuid, ?, ?::jsonb, ?::uuid, ?::uuid, ?::float8, ?::float8, ?::float8, ?::float8)').join(', ');
+	const rows = loops.map(() => '(?::uuid, ?, ?::jsonb, ?::uuid, ?::uuid, ?::float8, ?::float8, ?::float8, ?::float8, ?::jsonb, ?::float8)').join(', ');
 	await conn.execute(
 		`update loop l set verdict = v.verdict, verdict_detail = v.detail, judged_revision_id = v.revision_id,
 		        judged_requirement_id = v.requirement_id, judged_at = ?,
 		        verdict_changed_at = case when l.verdict is distinct from v.verdict then ? else l.verdict_changed_at end,
-		        wc_phase_margin_deg = v.pm, wc_upper_gain_margin_db = v.gm, wc_delay_margin_s = v.dm, wc_modulus_margin = v.mm
-		 from (values ${rows}) as v(id, verdict, detail, revision_id, requirement_id, pm, gm, dm, mm)
+		        wc_phase_margin_deg = v.pm, wc_upper_gain_margin_db = v.gm, wc_delay_margin_s = v.dm, wc_modulus_margin = v.mm,
+		        failing_criteria = array(select jsonb_array_elements_text(v.short)), worst_shortfall = v.worst
+		 from (values ${rows}) as v(id, verdict, detail, revision_id, requirement_id, pm, gm, dm, mm, short, worst)
 		 where l.id = v.id`,
 		[now, now, ...updates],
 		'run',

@@ -7,7 +7,10 @@ import { pagingFrom } from '$lib/server/registry/common';
 import { createLoop, listLoops, loopFiltersFrom } from '$lib/server/registry/loops';
 import type { RequestHandler } from './$types';
 
-/** Filters: q, product, class, owner, verdict, tag, archived=active|archived|all; sort, dir. */
+/**
+ * Filters q, product, class, owner, verdict, failing, tag, changedSince, archived; sort, dir,
+ * page, pageSize (see loop-query.ts and the README's API section).
+ */
 export const GET = (async (event) =>
 	api(async () => {
 		requireScope(event, 'read');

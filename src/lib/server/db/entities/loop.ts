@@ -36,10 +36,27 @@ export const LoopSchema = defineEntity({
 		wcPhaseMarginDeg: p.double().nullable(),
 		wcUpperGainMarginDb: p.double().nullable(),
 		wcDelayMarginS: p.double().nullable(),
-		wcModulusMargin: p.double().nullable()
+		wcModulusMargin: p.double().nullable(),
+		// Criteria the latest judgement found short of their target, covered by a deviation or
+		// not (the `failing` filter), and the largest relative shortfall among them (the
+		// `shortfall` sort): kept by judge-loops.ts with the judgement itself.
+		failingCriteria: p.array<string>().defaultRaw(`'{}'`),
+		worstShortfall: p.double().nullable()
 	},
 	uniques: [{ name: 'loop_product_key_unique', properties: ['product', 'key'] }],
-	indexes: [{ properties: ['loopClass'] }, { properties: ['owner'] }, { properties: ['verdict'] }],
+	indexes: [
+		{ properties: ['loopClass'] },
+		{ properties: ['owner'] },
+		{ properties: ['verdict'] },
+		// Dashboard filters and sorts over thousands of loops (src/lib/server/registry/loop-list.ts).
+		{ name: 'loop_failing_criteria_gin', properties: ['failingCriteria'], type: 'gin' },
+		{ name: 'loop_verdict_changed_at_index', properties: ['verdictChangedAt'] },
+		{ name: 'loop_updated_at_index', properties: ['updatedAt'] },
+		{ name: 'loop_wc_upper_gain_margin_db_index', properties: ['wcUpperGainMarginDb'] },
+		{ name: 'loop_wc_delay_margin_s_index', properties: ['wcDelayMarginS'] },
+		{ name: 'loop_wc_modulus_margin_index', properties: ['wcModulusMargin'] },
+		{ name: 'loop_worst_shortfall_index', properties: ['worstShortfall'] }
+	],
 	checks: [{ name: 'loop_key_format', expression: "key ~ '^[a-z0-9][a-z0-9._-]*$'" }]
 });
 

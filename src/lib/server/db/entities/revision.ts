@@ -37,7 +37,9 @@ export const RevisionSchema = defineEntity({
 	uniques: [{ name: 'revision_loop_number_unique', properties: ['loop', 'number'] }],
 	indexes: [
 		{ name: 'revision_loop_sha_index', properties: ['loop', 'sha256'] },
-		{ name: 'revision_state_index', properties: ['state'] }
+		{ name: 'revision_state_index', properties: ['state'] },
+		// The dashboard's `changedSince` filter: revisions uploaded since a moment, by loop.
+		{ name: 'revision_uploaded_at_loop_index', properties: ['uploadedAt', 'loop'] }
 	],
 	checks: [
 		{ name: 'revision_number_positive', expression: 'number > 0' },

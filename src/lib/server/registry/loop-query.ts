@@ -1,0 +1,155 @@
+/**
+ * The loop list's filters and sorts as SQL, shared by the paged list, the per-verdict counts and
+ * the CSV export so all three always mean the same rows. Everything is a bound parameter; the
+ * only spliced text comes from the fixed tables below.
+ */
+import { VERDICTS, type Verdict } from '../../compliance/judge';
+import { CRITERIA, type Criterion } from '../../compliance/criteria';
+import { VERDICT_RANK } from '../db/entities/verdict-event';
+import { Invalid } from '../errors';
+import { isUuid } from './common';
+
+export const LOOP_SORTS = [
+	'key',
+	'name',
+	'product',
+	'class',
+	'owner',
+	'verdict',
+	'updatedAt',
+	'phaseMargin',
+	'upperGainMargin',
+	'delayMargin',
+	'modulusMargin',
+	'shortfall'
+] as const;
+export type LoopSort = (typeof LOOP_SORTS)[number];
+
+export interface LoopFilters {
+	q?: string;
+	product?: string;
+	class?: string;
+	owner?: string;
+	verdict?: Verdict;
+	/** Loops whose latest judgement falls short on this criterion, covered by a deviation or not. */
+	failing?: Criterion;
+	tag?: string;
+	/** Verdict changed, or a revision uploaded, at or after this moment. */
+	changedSince?: Date;
+	archived?: 'active' | 'archived' | 'all';
+	sort?: LoopSort;
+	dir?: 'asc' | 'desc';
+}
+
+/** The query parameters that filter (not sort or page): a dashboard link keeps exactly these. */
+export const FILTER_PARAMS = ['q', 'product', 'class', 'owner', 'verdict', 'failing', 'tag', 'changedSince', 'archived'] as const;
+
+// A date (midnight UTC) or a date-time with seconds optional and a zone (Z or ±hh:mm) optional.
+const ISO = /^\d{4}-\d{2}-\d{2}(?:[T ]\d{2}:\d{2}(?::\d{2}(?:\.\d{1,9})?)?(?:Z|[+-]\d{2}:?\d{2})?)?$/;
+
+function parseInstant(raw: string, name: string): Date {
+	const value = /^\d{4}-\d{2}-\d{2}$/.test(raw) ? `${raw}T00:00:00Z` : raw.replace(' ', 'T');
+	const date = new Date(value);
+	if (!ISO.test(raw) || Number.isNaN(date.getTime())) {
+		throw new Invalid(`${name} must be an ISO date (2026-12-01) or date-time (2026-12-01T08:00:00Z).`, name);
+	}
+	return date;
+}
+
+/** Filters from a query string; an unknown value is a 400 naming the parameter. */
+export function loopFiltersFrom(params: URLSearchParams): LoopFilters {
+	const text = (name: string) => params.get(name)?.trim() || undefined;
+	const pick = <T extends string>(name: string, allowed: readonly T[]): T | undefined => {
+		const v = text(name);
+		if (v === undefined) return undefined;
+		if (!(allowed as readonly string[]).includes(v)) throw new Invalid(`${name} must be one of ${allowed.join(', ')}.`, name);
+		return v as T;
+	};
+	const since = text('changedSince');
+	return {
+		q: text('q'),
+		product: text('product'),
+		class: text('class'),
+		owner: text('owner'),
+		verdict: pick('verdict', VERDICTS),
+		failing: pick('failing', CRITERIA),
+		tag: text('tag'),
+		changedSince: since === undefined ? undefined : parseInstant(since, 'changedSince'),
+		archived: pick('archived', ['active', 'archived', 'all'] as const),
+		sort: pick('sort', LOOP_SORTS),
+		dir: pick('dir', ['asc', 'desc'] as const)
+	};
+}
+
+/** The filters back as query parameters (for links: the report, the export, a count). */
+export function filterQuery(f: LoopFilters): URLSearchParams {
+	const out = new URLSearchParams();
+	for (const name of FILTER_PARAMS) {
+		const v = f[name];
+		if (v === undefined) continue;
+		out.set(name, v instanceof Date ? v.toISOString() : v);
+	}
+	return out;
+}
+
+export const FROM = `from loop l
+	join product p on p.id = l.product_id
+	join loop_class c on c.id = l.loop_class_id
+	join app_user u on u.id = l.owner_id`;
+
+const like = (q: string) => `%${q.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
+
+/** `where …` and its parameters; `omit` leaves filters out (the counts per verdict ignore `verdict`). */
+export function whereOf(f: LoopFilters, omit: (keyof LoopFilters)[] = []): { sql: string; params: unknown[] } {
+	const clauses: string[] = [];
+	const params: unknown[] = [];
+	const use = (k: keyof LoopFilters) => f[k] !== undefined && !omit.includes(k);
+	if (use('q')) {
+		clauses.push('(l.key ilike ? or l.name ilike ?)');
+		params.push(like(f.q!), like(f.q!));
+	}
+	if (use('product')) (clauses.push('p.key = ?'), params.push(f.product));
+	if (use('class')) (clauses.push('c.key = ?'), params.push(f.class));
+	if (use('owner')) {
+		if (isUuid(f.owner!)) (clauses.push('l.owner_id = ?'), params.push(f.owner));
+		else (clauses.push('u.email = ?'), params.push(f.owner!.toLowerCase()));
+	}
+	if (use('verdict')) (clauses.push('l.verdict = ?'), params.push(f.verdict));
+	if (use('failing')) (clauses.push('l.failing_criteria @> array[?::text]'), params.push(f.failing));
+	if (use('tag')) (clauses.push('l.tags @> array[?::text]'), params.push(f.tag));
+	if (use('changedSince')) {
+		clauses.push('(l.verdict_changed_at >= ? or l.id in (select r.loop_id from revision r where r.uploaded_at >= ?))');
+		params.push(f.changedSince, f.changedSince);
+	}
+	const archived = omit.includes('archived') ? 'all' : (f.archived ?? 'active');
+	if (archived !== 'all') clauses.push(archived === 'active' ? 'l.archived_at is null' : 'l.archived_at is not null');
+	return { sql: clauses.length ? `where ${clauses.join(' and ')}` : '', params };
+}
+
+const rankCase = `case l.verdict ${Object.entries(VERDICT_RANK)
+	.map(([v, r]) => `when '${v}' then ${r}`)
+	.join(' ')} end`;
+
+/** Sort expressions; margins are worst case over operating cases, a phase margin by its size. */
+const SORT_SQL: Record<LoopSort, string> = {
+	key: 'l.key',
+	name: 'l.name',
+	product: 'p.key',
+	class: 'c.key',
+	owner: 'u.name',
+	// Best to worst (compliant … unstable), so `desc` puts what needs attention first.
+	verdict: rankCase,
+	updatedAt: 'l.updated_at',
+	phaseMargin: 'abs(l.wc_phase_margin_deg)',
+	upperGainMargin: 'l.wc_upper_gain_margin_db',
+	delayMargin: 'l.wc_delay_margin_s',
+	modulusMargin: 'l.wc_modulus_margin',
+	shortfall: 'l.worst_shortfall'
+};
+
+/** `order by …`: loops without a value (not computed, or unbounded) come last either way. */
+export function orderOf(f: LoopFilters): string {
+	const dir = f.dir ?? 'asc';
+	// Ties broken by product and key so pages never overlap.
+	return `order by ${SORT_SQL[f.sort ?? 'key']} ${dir} nulls last, p.key asc, l.key asc, l.id asc`;
+}
