@@ -1,6 +1,6 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { MarginReportSchema, RevisionSchema } from '../db/entities';
-import { NotFound } from '../errors';
+import { Conflict, NotFound } from '../errors';
 import { isUuid } from '../registry/common';
 import { revisionView, type RevisionView } from './views';
 
@@ -21,4 +21,13 @@ export async function getRevision(em: EntityManager, id: string): Promise<Revisi
 	if (!row) throw new NotFound('No revision with this id.');
 	const report = await em.findOne(MarginReportSchema, { revision: id });
 	return revisionView(row, report?.result);
+}
+
+/** Where a revision's model file is stored; refused while the upload has not arrived. */
+export async function revisionObject(em: EntityManager, id: string): Promise<{ key: string; fileName: string; sha256: string | null }> {
+	if (!isUuid(id)) throw new NotFound('No revision with this id.');
+	const row = await em.findOne(RevisionSchema, { id });
+	if (!row) throw new NotFound('No revision with this id.');
+	if (row.state === 'awaiting-upload') throw new Conflict('The model file of this revision has not been uploaded yet.');
+	return { key: row.objectKey, fileName: row.fileName, sha256: row.sha256 ?? null };
 }

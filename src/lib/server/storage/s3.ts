@@ -60,6 +60,13 @@ export async function getObjectBytes(key: string): Promise<Uint8Array> {
 	return out.Body.transformToByteArray();
 }
 
+/** An object's body as a web stream (for answers that pass it on without buffering). */
+export async function getObjectStream(key: string): Promise<{ body: ReadableStream; size: number | null }> {
+	const out = await s3().send(new GetObjectCommand({ Bucket: bucket(), Key: key }));
+	if (!out.Body) throw new Error(`object ${key} has no body`);
+	return { body: out.Body.transformToWebStream(), size: out.ContentLength ?? null };
+}
+
 export async function deleteObject(key: string): Promise<void> {
 	await s3().send(new DeleteObjectCommand({ Bucket: bucket(), Key: key }));
 }

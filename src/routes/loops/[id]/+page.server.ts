@@ -41,8 +41,13 @@ export const load = (async (event) => {
 	const lead = atLeast(user.role, 'lead');
 	const all = { page: 1, pageSize: 200 };
 	const in90Days = new Date(Date.now() + 90 * 86_400_000).toISOString().slice(0, 10);
+	// The stored judgement of the latest computed revision: the verdict per criterion.
+	const judged = await em.findOne(LoopSchema, { id: loop.id }, { fields: ['verdictDetail', 'judgedRevisionId', 'judgedAt'] });
 	return {
 		loop,
+		verdictDetail: judged?.verdictDetail ?? null,
+		judgedRevisionId: judged?.judgedRevisionId ?? null,
+		judgedAt: judged?.judgedAt?.toISOString() ?? null,
 		deviations: await listDeviations(em, loop.id),
 		requirement: (await getClass(em, loop.class.key)).requirement,
 		canEdit: canEditLoop(user, loop),
