@@ -33,7 +33,7 @@ export interface ReportLoop {
 	verdict: Verdict;
 	judgedAt: string | null;
 	/** The requirement version the verdict was judged against (null before any judgement). */
-	requirement: { id: string; version: number } | null;
+	requirement: { id: string; version: number; targets: Targets } | null;
 	revision: FrozenRevision | null;
 	criteria: CriterionResult[];
 	failing: Criterion[];

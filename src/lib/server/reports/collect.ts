@@ -27,6 +27,11 @@ export async function selectLoops(em: EntityManager, filters: ReportFilters): Pr
 }
 
 const snake = (k: string) => k.replace(/[A-Z]/g, (c) => `_${c.toLowerCase()}`);
+/** Threshold columns as exact text (numeric → string), named like the fields of Targets. */
+const targetColumns = (alias: string) => TARGET_KEYS.map((k) => `${alias}${snake(k)}::text as "${k}"`).join(', ');
+/** Canonical decimals ("45.000000000" → "45"), unset targets left out. */
+const cleanTargets = (t: Targets): Targets =>
+	Object.fromEntries(TARGET_KEYS.map((k) => [k, normalizeDecimal(t[k])]).filter(([, v]) => v !== null)) as Targets;
 
 interface JudgedRow {
 	id: string;
@@ -58,12 +63,13 @@ export async function collectLoops(em: EntityManager, filters: ReportFilters): P
 		);
 		for (const r of rows) revisions.set(r.id, { id: r.id, number: r.number, sha256: r.sha256, objectKey: r.object_key, fileName: r.file_name });
 	}
-	const versions = new Map<string, number>();
+	const versions = new Map<string, { version: number; targets: Targets }>();
 	if (requirementIds.length) {
-		const rows = await conn.execute<{ id: string; version: number }[]>(`select id, version from requirement where ${idsIn('id')}`, [
-			JSON.stringify(requirementIds)
-		]);
-		for (const r of rows) versions.set(r.id, r.version);
+		const rows = await conn.execute<({ id: string; version: number } & Targets)[]>(
+			`select id, version, ${targetColumns('')} from requirement where ${idsIn('id')}`,
+			[JSON.stringify(requirementIds)]
+		);
+		for (const { id, version, ...targets } of rows) versions.set(id, { version, targets: cleanTargets(targets) });
 	}
 	return loops.map((l): ReportLoop => {
 		const j = byLoop.get(l.id);
@@ -79,7 +85,7 @@ export async function collectLoops(em: EntityManager, filters: ReportFilters): P
 			tags: l.tags,
 			verdict: l.verdict,
 			judgedAt: j?.judged_at ? new Date(j.judged_at).toISOString() : null,
-			requirement: requirementId && versions.has(requirementId) ? { id: requirementId, version: versions.get(requirementId)! } : null,
+			requirement: requirementId && versions.has(requirementId) ? { id: requirementId, ...versions.get(requirementId)! } : null,
 			revision: j?.judged_revision_id ? (revisions.get(j.judged_revision_id) ?? null) : null,
 			criteria: detail?.criteria ?? [],
 			failing: detail?.failing ?? [],
@@ -92,7 +98,7 @@ export async function collectLoops(em: EntityManager, filters: ReportFilters): P
 export async function requirementsInForce(em: EntityManager, loops: ReportLoop[]): Promise<FrozenRequirement[]> {
 	const classKeys = [...new Set(loops.map((l) => l.class.key))];
 	if (!classKeys.length) return [];
-	const columns = TARGET_KEYS.map((k) => `r.${snake(k)}::text as "${k}"`).join(', ');
+	const columns = targetColumns('r.');
 	const rows = await em.getConnection().execute<({ id: string; version: number; class_key: string; class_name: string } & Targets)[]>(
 		`select distinct on (c.id) r.id, r.version, c.key as class_key, c.name as class_name, ${columns}
 		 from requirement r join loop_class c on c.id = r.loop_class_id
@@ -106,9 +112,7 @@ export async function requirementsInForce(em: EntityManager, loops: ReportLoop[]
 			className: class_name,
 			requirementId: id,
 			version,
-			targets: Object.fromEntries(
-				TARGET_KEYS.map((k) => [k, normalizeDecimal((targets as Targets)[k])]).filter(([, v]) => v !== null)
-			) as Targets
+			targets: cleanTargets(targets as Targets)
 		}))
 		.sort((a, b) => a.classKey.localeCompare(b.classKey));
 }

@@ -14,11 +14,11 @@ import { CRITERION_LABELS, type Criterion } from '../../compliance/criteria';
 import type { CriterionResult, Verdict } from '../../compliance/judge';
 import { VERDICTS } from '../../compliance/judge';
 import { VERDICT_LABELS } from '../../compliance/labels';
-import type { CaseResponse } from '../../margins';
+import type { CaseResponse, MarginsResult } from '../../margins';
 import { scopeInWords } from '../../reports/filters';
 import type { ReportData, ReportLoop } from '../../reports/types';
 import { actualText, pdfSafe, requiredText, shortfallText, STATUS_WORDS, targetsInWords } from '../../reports/words';
-import { bodeFrames, nyquistFrame, type PlotFrame } from './fallback-plots';
+import { CASE_DASH, CASE_INK, drawBode, drawNyquist } from './pdf-plots';
 import { sfntFont } from './woff';
 
 type Doc = PDFKit.PDFDocument;
@@ -49,9 +49,6 @@ const VERDICT_INK: Record<Verdict, string> = {
 	rejected: '#5b3a1a',
 	empty: '#6b7280'
 };
-/** Curves per case differ by dash pattern as well as shade. */
-const CASE_DASH: (number[] | null)[] = [null, [4, 2], [1.2, 1.6], [6, 2, 1.2, 2]];
-const CASE_INK = ['#1f5f8b', '#a3261b', '#1d6b3a', '#7b1f6a'];
 
 const MARGIN = { top: 54, bottom: 62, left: 48, right: 48 };
 const PAGE_W = 595.28;
@@ -59,10 +56,15 @@ const PAGE_H = 841.89;
 const CONTENT_W = PAGE_W - MARGIN.left - MARGIN.right;
 const BOTTOM = PAGE_H - MARGIN.bottom;
 
+export interface LoopPlot {
+	cases: CaseResponse[];
+	margins: MarginsResult | null;
+}
+
 export interface PdfInput {
 	report: ReportData;
-	/** Sampled responses of the loops that get a plot page, by loop id. */
-	responses: Map<string, CaseResponse[]>;
+	/** What the plot pages draw, by loop id: the sampled response and the stored margins. */
+	plots: Map<string, LoopPlot>;
 }
 
 /** Loops that get a page of their own. */
@@ -208,13 +210,13 @@ const ROW_PAD = 3;
 function tableHeader(doc: Doc) {
 	const y = doc.y;
 	// Two lines fit: "Phase / margin" wraps inside its column.
-	doc.rect(MARGIN.left, y, CONTENT_W, 22).fill('#eef1f5');
+	doc.rect(MARGIN.left, y, CONTENT_W, 24).fill('#eef1f5');
 	let x = MARGIN.left;
 	for (const c of ALL_COLS) {
-		doc.font('bold').fontSize(7).fillColor(SOFT).text(c.title, x + 3, y + 3, { width: c.w - 6, height: 18 });
+		doc.font('bold').fontSize(7).fillColor(SOFT).text(c.title, x + 3, y + 3, { width: c.w - 6 });
 		x += c.w;
 	}
-	doc.y = y + 22;
+	doc.y = y + 24;
 }
 
 function cellCriterion(c: CriterionResult | undefined): { top: string; bottom: string; fail: boolean } {
@@ -330,42 +332,6 @@ function criteriaTable(doc: Doc, criteria: CriterionResult[]) {
 	doc.x = MARGIN.left;
 }
 
-function drawFrame(doc: Doc, f: PlotFrame, x: number, y: number, title: string, axes: { x: string; y: string }) {
-	doc.font('bold').fontSize(8).fillColor(INK).text(title, x, y - 12, { lineBreak: false });
-	doc.save().translate(x, y);
-	doc.rect(0, 0, f.width, f.height).lineWidth(0.6).stroke(LINE);
-	doc.font('sans').fontSize(6.5).fillColor(FAINT);
-	for (const t of f.xTicks) {
-		doc.moveTo(t.at, 0).lineTo(t.at, f.height).lineWidth(0.25).stroke('#e3e7ed');
-		doc.text(t.label, t.at - 15, f.height + 2, { width: 30, align: 'center', lineBreak: false });
-	}
-	for (const t of f.yTicks) {
-		doc.moveTo(0, t.at).lineTo(f.width, t.at).lineWidth(0.25).stroke('#e3e7ed');
-		doc.text(t.label, -34, t.at - 3, { width: 31, align: 'right', lineBreak: false });
-	}
-	doc.save().rect(0, 0, f.width, f.height).clip();
-	for (const g of f.guides) doc.path(g).lineWidth(0.6).dash(2, { space: 2 }).stroke(SOFT);
-	doc.undash();
-	f.curves.forEach((c, i) => {
-		const dash = CASE_DASH[i % CASE_DASH.length];
-		if (!c.d) return;
-		doc.path(c.d).lineWidth(1.1);
-		if (dash) doc.dash(dash[0], { space: dash[1] });
-		doc.stroke(CASE_INK[i % CASE_INK.length]);
-		doc.undash();
-	});
-	for (const m of f.marks) {
-		doc.path(`M${m.x - 3},${m.y - 3}L${m.x + 3},${m.y + 3}M${m.x - 3},${m.y + 3}L${m.x + 3},${m.y - 3}`).lineWidth(1.2).stroke(VERDICT_INK.noncompliant);
-		doc.font('bold').fontSize(7).fillColor(VERDICT_INK.noncompliant).text(m.label, m.x + 4, m.y + 2, { lineBreak: false });
-	}
-	doc.restore();
-	doc.font('sans').fontSize(6.5).fillColor(SOFT).text(axes.x, 0, f.height + 10, { width: f.width, align: 'center', lineBreak: false });
-	doc.save().rotate(-90, { origin: [-30, f.height / 2] });
-	doc.text(axes.y, -30 - f.height / 2, f.height / 2 - 10, { width: f.height, align: 'center', lineBreak: false });
-	doc.restore();
-	doc.restore();
-}
-
 function legend(doc: Doc, cases: CaseResponse[], x: number, y: number) {
 	cases.slice(0, CASE_DASH.length).forEach((c, i) => {
 		const yy = y + i * 11;
@@ -381,7 +347,7 @@ function legend(doc: Doc, cases: CaseResponse[], x: number, y: number) {
 	}
 }
 
-function loopPage(doc: Doc, l: ReportLoop, cases: CaseResponse[] | undefined) {
+function loopPage(doc: Doc, l: ReportLoop, plot: LoopPlot | undefined) {
 	doc.addPage();
 	doc.font('sans').fontSize(8).fillColor(SOFT).text(T(`${l.product.name} (${l.product.key})`), MARGIN.left, MARGIN.top);
 	heading(doc, `${l.product.key} / ${l.key} — ${l.name}`, 15);
@@ -399,25 +365,27 @@ function loopPage(doc: Doc, l: ReportLoop, cases: CaseResponse[] | undefined) {
 	heading(doc, l.verdict === 'unstable' ? 'Criteria (the closed loop is unstable)' : 'Failing criteria first', 10);
 	if (l.criteria.length) criteriaTable(doc, l.criteria);
 	else doc.font('sans').fontSize(8).fillColor(SOFT).text('No criteria were judged.').moveDown(0.5);
-	if (!cases?.length) {
+	if (!plot?.cases.length) {
 		doc.font('sans').fontSize(9).fillColor(SOFT).text('No plot: the judged revision has no sampled response.', MARGIN.left, doc.y + 6);
 		return;
 	}
-	const plotX = MARGIN.left + 38;
-	const plotW = CONTENT_W - 38;
-	const avail = BOTTOM - doc.y - 40;
-	// Bode magnitude and phase stacked, the Nyquist plot beside the legend below.
-	const bodeH = Math.max(70, Math.min(120, (avail - 40) * 0.28));
-	const nyq = Math.max(120, Math.min(220, avail - 2 * bodeH - 70));
-	const { magnitude, phase } = bodeFrames(cases, plotW, bodeH);
-	let y = doc.y + 16;
-	drawFrame(doc, magnitude, plotX, y, 'Bode magnitude', { x: 'frequency (Hz)', y: 'dB' });
-	y += bodeH + 34;
-	drawFrame(doc, phase, plotX, y, 'Bode phase', { x: 'frequency (Hz)', y: 'degrees' });
-	y += bodeH + 34;
-	drawFrame(doc, nyquistFrame(cases, nyq), plotX, y, 'Nyquist (both frequency signs)', { x: 'real', y: 'imaginary' });
-	legend(doc, cases, plotX + nyq + 30, y);
-	doc.y = y + nyq + 20;
+	const avail = BOTTOM - doc.y - 12;
+	// Bode magnitude over phase across the page, the Nyquist plot below it beside the legend.
+	const nyq = Math.max(150, Math.min(230, avail * 0.5));
+	const bodeH = Math.max(170, avail - nyq - 10);
+	let y = doc.y + 4;
+	drawBode(doc, plot.cases, plot.margins, MARGIN.left, y, CONTENT_W, bodeH);
+	y += bodeH + 6;
+	doc.font('bold').fontSize(7.5).fillColor(INK).text('Nyquist', MARGIN.left + 42, y + 4, { lineBreak: false });
+	const forbidden = drawNyquist(doc, plot.cases, plot.margins, l.requirement?.targets ?? null, MARGIN.left, y, nyq);
+	const lx = MARGIN.left + nyq + 16;
+	legend(doc, plot.cases, lx, y + 8);
+	if (forbidden.length) {
+		doc.font('bold').fontSize(7).fillColor(INK).text('Shaded: ruled out by the targets', lx, y + 70, { width: CONTENT_W - nyq - 16 });
+		doc.font('sans').fontSize(7).fillColor(SOFT).text(T(forbidden.join('\n')), lx, doc.y + 2, { width: CONTENT_W - nyq - 16 });
+	}
+	doc.y = y + nyq + 4;
+	doc.x = MARGIN.left;
 }
 
 function footers(doc: Doc, r: ReportData) {
@@ -437,7 +405,7 @@ function footers(doc: Doc, r: ReportData) {
 	}
 }
 
-export async function renderPdf({ report, responses }: PdfInput): Promise<Uint8Array> {
+export async function renderPdf({ report, plots }: PdfInput): Promise<Uint8Array> {
 	const doc = new PDFDocument({
 		size: 'A4',
 		margins: MARGIN,
@@ -463,7 +431,7 @@ export async function renderPdf({ report, responses }: PdfInput): Promise<Uint8A
 	});
 	cover(doc, report);
 	loopTable(doc, report.loops);
-	for (const l of report.loops.filter(needsPlotPage)) loopPage(doc, l, responses.get(l.id));
+	for (const l of report.loops.filter(needsPlotPage)) loopPage(doc, l, plots.get(l.id));
 	footers(doc, report);
 	doc.end();
 	await done;

@@ -7,17 +7,19 @@
  */
 import { createHash } from 'node:crypto';
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { ENGINE_VERSION, parseModelText, sampleResponse, type CaseResponse } from '../../margins';
+import { ENGINE_VERSION, parseModelText, sampleResponse, type CaseResponse, type MarginsResult } from '../../margins';
 import type { ReportFilters, ReportFormat } from '../../reports/filters';
 import { renderCsv } from '../../reports/csv';
 import type { ReportData, ReportLoop } from '../../reports/types';
 import { getObjectBytes, putObject } from '../storage/s3';
 import type { FrozenLoopEvidence } from '../db/entities';
 import { collectLoops, requirementsInForce } from './collect';
-import { needsPlotPage, renderPdf, verdictCounts } from './pdf';
+import { needsPlotPage, renderPdf, verdictCounts, type LoopPlot } from './pdf';
 import { CONTENT_TYPES } from './exports';
 
 export type RenderOutcome = 'ready' | 'skipped';
+
+const DOWNLOADS = 8;
 
 interface Claimed {
 	id: string;
@@ -82,9 +84,27 @@ export async function buildReport(
 		loops
 	};
 	if (meta.format === 'csv') return { data, bytes: new TextEncoder().encode(renderCsv(data)) };
-	const responses = new Map<string, CaseResponse[]>();
-	for (const l of loops.filter(needsPlotPage)) responses.set(l.id, await sampledResponses(l));
-	return { data, bytes: await renderPdf({ report: data, responses }) };
+	return { data, bytes: await renderPdf({ report: data, plots: await loadPlots(em, loops.filter(needsPlotPage)) }) };
+}
+
+/** Per plotted loop: its judged revision sampled, and the margins stored for that revision. */
+async function loadPlots(em: EntityManager, loops: ReportLoop[]): Promise<Map<string, LoopPlot>> {
+	const revisionIds = loops.map((l) => l.revision?.id).filter((x): x is string => !!x);
+	const stored = revisionIds.length
+		? await em.getConnection().execute<{ revision_id: string; result: MarginsResult }[]>(
+				'select revision_id, result from margin_report where revision_id in (select jsonb_array_elements_text(?::jsonb)::uuid)',
+				[JSON.stringify(revisionIds)]
+			)
+		: [];
+	const margins = new Map(stored.map((m) => [m.revision_id, m.result]));
+	const plots = new Map<string, LoopPlot>();
+	// A few downloads in flight at once: the store's latency, not the CPU, sets the pace here.
+	for (let i = 0; i < loops.length; i += DOWNLOADS) {
+		const chunk = loops.slice(i, i + DOWNLOADS);
+		const cases = await Promise.all(chunk.map((l) => sampledResponses(l)));
+		chunk.forEach((l, k) => plots.set(l.id, { cases: cases[k], margins: (l.revision && margins.get(l.revision.id)) || null }));
+	}
+	return plots;
 }
 
 export async function renderReport(em: EntityManager, reportId: string): Promise<RenderOutcome> {
