@@ -37,14 +37,14 @@ const text = (max: number) =>
 		.transform((v) => v || undefined)
 		.optional();
 
-const DAY = /^\d{4}-\d{2}-\d{2}$/;
-const INSTANT = /^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}(:\d{2}(\.\d+)?)?(Z|[+-]\d{2}:\d{2})$/;
+// As GET /api/loops reads it: a date (midnight UTC) or a date-time, seconds and zone optional.
+const ISO = /^\d{4}-\d{2}-\d{2}(?:[T ]\d{2}:\d{2}(?::\d{2}(?:\.\d{1,9})?)?(?:Z|[+-]\d{2}:?\d{2})?)?$/;
 
 const changedSince = z
 	.string()
 	.trim()
-	.refine((v) => v === '' || ((DAY.test(v) || INSTANT.test(v)) && !Number.isNaN(Date.parse(v))), {
-		message: 'Give a date (2026-11-30) or an ISO 8601 time with its offset (2026-11-30T08:00Z).'
+	.refine((v) => v === '' || (ISO.test(v) && !Number.isNaN(Date.parse(/^\d{4}-\d{2}-\d{2}$/.test(v) ? `${v}T00:00:00Z` : v.replace(' ', 'T')))), {
+		message: 'Give a date (2026-11-30) or an ISO 8601 date-time (2026-11-30T08:00:00Z).'
 	})
 	.transform((v) => v || undefined)
 	.optional();

@@ -66,5 +66,7 @@ export function pdfSafe(text: string): string {
 		.replace(/≤/g, '<=')
 		.replace(/∞/g, 'no limit')
 		.replace(/→/g, '->')
-		.replace(/[\u0000-\u0008\u000b\u000c\u000e-\u001f\u007f]/g, '');
+		.split('')
+		.filter((c) => c === '\n' || (c >= ' ' && c !== '\u007f'))
+		.join('');
 }

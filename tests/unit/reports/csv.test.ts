@@ -12,7 +12,7 @@ const loop = (over: Partial<ReportLoop> = {}): ReportLoop => ({
 	tags: [],
 	verdict: 'noncompliant',
 	judgedAt: '2026-12-01T10:00:00.000Z',
-	requirement: { id: 'r1', version: 3 },
+	requirement: { id: 'r1', version: 3, targets: { minPhaseMarginDeg: '45' } },
 	revision: { id: 'v1', number: 2, sha256: 'ab'.repeat(32), objectKey: 'models/x/y', fileName: 'm.json' },
 	criteria: [
 		{ criterion: 'phaseMargin', status: 'fail', required: '45', comparison: 'at least', actual: 35.4254, shortfall: '9.5746', fromCase: 'cold' },
@@ -29,16 +29,26 @@ function parse(text: string): string[][] {
 	let row: string[] = [];
 	let cell = '';
 	let quoted = false;
+	const endCell = () => {
+		row.push(cell);
+		cell = '';
+	};
 	for (let i = 0; i < text.length; i++) {
 		const ch = text[i];
 		if (quoted) {
-			if (ch === '"' && text[i + 1] === '"') (cell += '"'), i++;
-			else if (ch === '"') quoted = false;
+			if (ch === '"' && text[i + 1] === '"') {
+				cell += '"';
+				i++;
+			} else if (ch === '"') quoted = false;
 			else cell += ch;
 		} else if (ch === '"') quoted = true;
-		else if (ch === ',') row.push(cell), (cell = '');
-		else if (ch === '\r' && text[i + 1] === '\n') row.push(cell), rows.push(row), (row = []), (cell = ''), i++;
-		else cell += ch;
+		else if (ch === ',') endCell();
+		else if (ch === '\r' && text[i + 1] === '\n') {
+			endCell();
+			rows.push(row);
+			row = [];
+			i++;
+		} else cell += ch;
 	}
 	return rows;
 }

@@ -50,7 +50,7 @@ export async function sampledResponses(l: ReportLoop, points = 200): Promise<Cas
 		bytes = await getObjectBytes(l.revision.objectKey);
 	} catch (error) {
 		const why = error instanceof Error ? error.message : String(error);
-		throw new Error(`Could not read the model of ${l.product.key}/${l.key} revision ${l.revision.number} from storage (${why}).`);
+		throw new Error(`Could not read the model of ${l.product.key}/${l.key} revision ${l.revision.number} from storage (${why}).`, { cause: error });
 	}
 	const parsed = parseModelText(new TextDecoder().decode(bytes), l.revision.fileName);
 	if (!parsed.ok) {
