@@ -23,7 +23,7 @@ async function signIn(page: Page, email: string) {
 async function exportAndDownload(page: Page, format: 'PDF' | 'CSV') {
 	const rows = page.getByTestId('report-row');
 	const before = await rows.count();
-	await page.getByLabel(new RegExp(`^${format}`)).check();
+	await page.getByRole('radio', { name: new RegExp('^\\s*' + format + '\\b') }).check();
 	await page.getByRole('button', { name: 'Export report' }).click();
 	await expect.poll(() => rows.count(), { timeout: 10_000 }).toBe(before + 1);
 	const row = rows.first();
