@@ -7,6 +7,7 @@ import type { Targets } from '../../compliance/criteria';
 import type { CaseResponse, MarginsResult } from '../../margins';
 import { bodeGeometry, nyquistGeometry, type Axis, type Rect } from '../../plots';
 import { pdfSafe } from '../../reports/words';
+import { put } from './pdf-text';
 
 type Doc = PDFKit.PDFDocument;
 
@@ -36,7 +37,8 @@ function dashed(doc: Doc, d: string, color = REF, width = 0.6) {
 }
 
 function small(doc: Doc, text: string, x: number, y: number, width: number, align: 'left' | 'center' | 'right' = 'left', color = LABEL) {
-	doc.font('sans').fontSize(6.5).fillColor(color).text(pdfSafe(text), x, y, { width, align, lineBreak: false });
+	doc.font('sans').fontSize(6.5).fillColor(color);
+	put(doc, pdfSafe(text), x, y, { width, align });
 }
 
 function xAxis(doc: Doc, axis: Axis, panel: Rect, labels: boolean) {
@@ -66,7 +68,8 @@ export function drawBode(doc: Doc, cases: CaseResponse[], margins: MarginsResult
 		xAxis(doc, g.x, panel, true);
 		yAxis(doc, axis, panel);
 		frame(doc, panel);
-		doc.font('bold').fontSize(7.5).fillColor('#1b2330').text(title, panel.left + 4, panel.top + 3, { lineBreak: false });
+		doc.font('bold').fontSize(7.5).fillColor('#1b2330');
+		put(doc, title, panel.left + 4, panel.top + 3);
 	}
 	dashed(doc, g.zeroDb.path);
 	for (const c of g.criticalLines) dashed(doc, c.path);

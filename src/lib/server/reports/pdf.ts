@@ -20,6 +20,7 @@ import type { ReportData, ReportLoop } from '../../reports/types';
 import { actualText, pdfSafe, requiredText, shortfallText, STATUS_WORDS, targetsInWords } from '../../reports/words';
 import { CASE_DASH, CASE_INK, drawBode, drawNyquist } from './pdf-plots';
 import { sfntFont } from './woff';
+import { block, blockHeight, put } from './pdf-text';
 
 type Doc = PDFKit.PDFDocument;
 
@@ -113,7 +114,8 @@ function verdictShape(doc: Doc, verdict: Verdict, x: number, y: number, s = 8) {
 
 function verdictLabel(doc: Doc, verdict: Verdict, x: number, y: number, size = 8) {
 	verdictShape(doc, verdict, x, y + size * 0.12, size);
-	doc.font('bold').fontSize(size).fillColor(VERDICT_INK[verdict]).text(VERDICT_LABELS[verdict], x + size * 1.35, y, { lineBreak: false });
+	doc.font('bold').fontSize(size).fillColor(VERDICT_INK[verdict]);
+	put(doc, VERDICT_LABELS[verdict], x + size * 1.35, y);
 	doc.fillColor(INK);
 }
 
@@ -164,7 +166,8 @@ function cover(doc: Doc, r: ReportData) {
 		const x = MARGIN.left + (i % 4) * colW;
 		const y = top + Math.floor(i / 4) * 22;
 		verdictLabel(doc, v, x, y, 9);
-		doc.font('bold').fontSize(9).fillColor(INK).text(String(counts[v]), x + colW - 40, y, { width: 30, align: 'right', lineBreak: false });
+		doc.font('bold').fontSize(9).fillColor(INK);
+		put(doc, String(counts[v]), x + colW - 40, y, { width: 30, align: 'right' });
 	});
 	doc.y = top + 2 * 22 + 6;
 	doc.x = MARGIN.left;
@@ -244,10 +247,9 @@ function tableRow(doc: Doc, l: ReportLoop, shade: boolean) {
 	const heights = texts.map((t, i) => {
 		const w = ALL_COLS[i].w - 6;
 		doc.font(t.fail ? 'bold' : 'sans');
-		const top = t.top ? doc.heightOfString(T(t.top), { width: w }) : 0;
+		const top = blockHeight(doc, T(t.top), w);
 		doc.font('sans');
-		const bottom = t.bottom ? doc.heightOfString(T(t.bottom), { width: w }) : 0;
-		return top + bottom;
+		return top + blockHeight(doc, T(t.bottom), w);
 	});
 	const h = Math.max(20, ...heights) + 2 * ROW_PAD;
 	if (doc.y + h > BOTTOM) {
@@ -263,8 +265,11 @@ function tableRow(doc: Doc, l: ReportLoop, shade: boolean) {
 			verdictLabel(doc, l.verdict, x + 3, y + ROW_PAD, 7);
 		} else {
 			doc.font(t.fail ? 'bold' : 'sans').fontSize(7).fillColor(t.fail ? VERDICT_INK.noncompliant : INK);
-			doc.text(T(t.top), x + 3, y + ROW_PAD, { width: w });
-			if (t.bottom) doc.font('sans').fontSize(7).fillColor(FAINT).text(T(t.bottom), x + 3, doc.y, { width: w });
+			block(doc, T(t.top), x + 3, y + ROW_PAD, w);
+			if (t.bottom) {
+				doc.font('sans').fontSize(7).fillColor(FAINT);
+				block(doc, T(t.bottom), x + 3, doc.y, w);
+			}
 		}
 		x += ALL_COLS[i].w;
 	});
@@ -304,7 +309,8 @@ function criteriaTable(doc: Doc, criteria: CriterionResult[]) {
 	let x = MARGIN.left;
 	doc.rect(MARGIN.left, y, CONTENT_W, 14).fill('#eef1f5');
 	for (const c of cols) {
-		doc.font('bold').fontSize(7.5).fillColor(SOFT).text(c.t, x + 3, y + 4, { width: c.w - 6, lineBreak: false });
+		doc.font('bold').fontSize(7.5).fillColor(SOFT);
+		put(doc, c.t, x + 3, y + 4, { width: c.w - 6 });
 		x += c.w;
 	}
 	y += 14;
@@ -322,7 +328,7 @@ function criteriaTable(doc: Doc, criteria: CriterionResult[]) {
 		values.forEach((v, i) => {
 			const fail = c.status === 'fail' && i !== 4;
 			doc.font(fail ? 'bold' : 'sans').fontSize(8).fillColor(fail ? VERDICT_INK.noncompliant : INK);
-			doc.text(T(v), x + 3, y + 3, { width: cols[i].w - 6, lineBreak: false, ellipsis: true });
+			put(doc, T(v), x + 3, y + 3, { width: cols[i].w - 6 });
 			x += cols[i].w;
 		});
 		y += 15;
@@ -340,10 +346,12 @@ function legend(doc: Doc, cases: CaseResponse[], x: number, y: number) {
 		if (dash) doc.dash(dash[0], { space: dash[1] });
 		doc.stroke(CASE_INK[i]);
 		doc.undash();
-		doc.font('sans').fontSize(7).fillColor(INK).text(T(c.name), x + 22, yy, { width: 140, lineBreak: false, ellipsis: true });
+		doc.font('sans').fontSize(7).fillColor(INK);
+		put(doc, T(c.name), x + 22, yy, { width: 140 });
 	});
 	if (cases.length > CASE_DASH.length) {
-		doc.font('sans').fontSize(7).fillColor(SOFT).text(`… and ${cases.length - CASE_DASH.length} more case(s), not drawn`, x, y + CASE_DASH.length * 11, { lineBreak: false });
+		doc.font('sans').fontSize(7).fillColor(SOFT);
+		put(doc, `… and ${cases.length - CASE_DASH.length} more case(s), not drawn`, x, y + CASE_DASH.length * 11);
 	}
 }
 
@@ -376,7 +384,8 @@ function loopPage(doc: Doc, l: ReportLoop, plot: LoopPlot | undefined) {
 	let y = doc.y + 4;
 	drawBode(doc, plot.cases, plot.margins, MARGIN.left, y, CONTENT_W, bodeH);
 	y += bodeH + 6;
-	doc.font('bold').fontSize(7.5).fillColor(INK).text('Nyquist', MARGIN.left + 42, y + 4, { lineBreak: false });
+	doc.font('bold').fontSize(7.5).fillColor(INK);
+	put(doc, 'Nyquist', MARGIN.left + 42, y + 4);
 	const forbidden = drawNyquist(doc, plot.cases, plot.margins, l.requirement?.targets ?? null, MARGIN.left, y, nyq);
 	const lx = MARGIN.left + nyq + 16;
 	legend(doc, plot.cases, lx, y + 8);
@@ -398,9 +407,9 @@ function footers(doc: Doc, r: ReportData) {
 		const y = PAGE_H - MARGIN.bottom + 18;
 		doc.moveTo(MARGIN.left, y - 6).lineTo(PAGE_W - MARGIN.right, y - 6).lineWidth(0.4).stroke(LINE);
 		doc.font('sans').fontSize(7).fillColor(FAINT);
-		doc.text(`Headroom compliance report ${r.id.slice(0, 8)} · ${when(r.generatedAt)}`, MARGIN.left, y, { width: CONTENT_W - 90, lineBreak: false });
-		doc.text(`page ${i + 1} of ${range.count}`, PAGE_W - MARGIN.right - 90, y, { width: 90, align: 'right', lineBreak: false });
-		doc.text(CAUTION_SHORT, MARGIN.left, y + 10, { width: CONTENT_W, lineBreak: false });
+		put(doc, `Headroom compliance report ${r.id.slice(0, 8)} · ${when(r.generatedAt)}`, MARGIN.left, y);
+		put(doc, `page ${i + 1} of ${range.count}`, PAGE_W - MARGIN.right - 90, y, { width: 90, align: 'right' });
+		put(doc, CAUTION_SHORT, MARGIN.left, y + 10, { width: CONTENT_W });
 		doc.page.margins.bottom = saved;
 	}
 }
