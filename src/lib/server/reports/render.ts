@@ -42,8 +42,8 @@ async function claim(em: EntityManager, id: string): Promise<Claimed | null> {
 	return rows[0] ?? null;
 }
 
-/** The judged revision's model, sampled for the plots (a few hundred points per case). */
-export async function sampledResponses(l: ReportLoop, points = 200): Promise<CaseResponse[]> {
+/** The judged revision's model, sampled for the plots (160 points per case: ample at plot size). */
+export async function sampledResponses(l: ReportLoop, points = 160): Promise<CaseResponse[]> {
 	if (!l.revision) return [];
 	let bytes: Uint8Array;
 	try {
@@ -74,7 +74,13 @@ export const evidenceOf = (l: ReportLoop): FrozenLoopEvidence => ({
 export async function buildReport(
 	em: EntityManager,
 	meta: Pick<ReportData, 'id' | 'format' | 'filters' | 'requestedBy'>
-): Promise<{ data: ReportData; bytes: Uint8Array }> {
+): Promise<{ data: ReportData; bytes: Uint8Array; timings: Record<string, number> }> {
+	const t0 = performance.now();
+	const cpu0 = process.cpuUsage();
+	const cpu = () => {
+		const { user, system } = process.cpuUsage(cpu0);
+		return (user + system) / 1000;
+	};
 	const loops = await collectLoops(em, meta.filters);
 	const data: ReportData = {
 		...meta,
@@ -83,8 +89,15 @@ export async function buildReport(
 		requirements: await requirementsInForce(em, loops),
 		loops
 	};
-	if (meta.format === 'csv') return { data, bytes: new TextEncoder().encode(renderCsv(data)) };
-	return { data, bytes: await renderPdf({ report: data, plots: await loadPlots(em, loops.filter(needsPlotPage)) }) };
+	const t1 = performance.now();
+	if (meta.format === 'csv') {
+		const bytes = new TextEncoder().encode(renderCsv(data));
+		return { data, bytes, timings: { collect: t1 - t0, render: performance.now() - t1, cpu: cpu() } };
+	}
+	const plots = await loadPlots(em, loops.filter(needsPlotPage));
+	const t2 = performance.now();
+	const bytes = await renderPdf({ report: data, plots });
+	return { data, bytes, timings: { collect: t1 - t0, models: t2 - t1, render: performance.now() - t2, cpu: cpu() } };
 }
 
 /** Per plotted loop: its judged revision sampled, and the margins stored for that revision. */
@@ -112,13 +125,17 @@ export async function renderReport(em: EntityManager, reportId: string): Promise
 	if (!row) return 'skipped';
 	const conn = em.getConnection();
 	try {
-		const { data, bytes } = await buildReport(em, {
+		const { data, bytes, timings } = await buildReport(em, {
 			id: row.id,
 			format: row.format,
 			filters: row.filters,
 			requestedBy: { name: row.user_name, email: row.user_email }
 		});
+		const t = performance.now();
 		await putObject(row.object_key, bytes, CONTENT_TYPES[row.format]);
+		timings.store = performance.now() - t;
+		const phases = Object.entries(timings).map(([k, ms]) => `${k} ${ms.toFixed(0)} ms`).join(', ');
+		console.log(`[reports] ${row.id} ${row.format}: ${data.loops.length} loops, ${bytes.byteLength} bytes (${phases})`);
 		await conn.execute(
 			`update report_export set state = 'ready', finished_at = now(), size_bytes = ?, sha256 = ?, engine_version = ?,
 			        loop_count = ?, verdict_counts = ?::jsonb, requirements = ?::jsonb, evidence = ?::jsonb
