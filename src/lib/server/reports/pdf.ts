@@ -126,17 +126,11 @@ function heading(doc: Doc, text: string, size = 14) {
 	doc.moveDown(0.3);
 }
 
-/**
- * Mono only for identifiers without blanks: the space glyph of the Plex Mono .woff subset has
- * broken outline data that fontkit cannot decode.
- */
-const monoOk = (v: string) => !/\s/.test(v);
-
 function keyValue(doc: Doc, rows: [string, string, ('mono' | 'sans')?][], labelW = 120) {
 	for (const [k, v, font] of rows) {
 		const y = doc.y;
 		doc.font('sans').fontSize(9).fillColor(SOFT).text(k, MARGIN.left, y, { width: labelW });
-		doc.font(font === 'mono' && monoOk(v) ? 'mono' : 'sans').fontSize(9).fillColor(INK).text(T(v), MARGIN.left + labelW, y, { width: CONTENT_W - labelW });
+		doc.font(font ?? 'sans').fontSize(9).fillColor(INK).text(T(v), MARGIN.left + labelW, y, { width: CONTENT_W - labelW });
 		doc.moveDown(0.25);
 	}
 }

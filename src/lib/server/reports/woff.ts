@@ -2,6 +2,7 @@
  * WOFF 1.0 → plain sfnt (TrueType) bytes, once per process. fontkit reads a .woff by inflating
  * the table it needs on every glyph lookup, which made text layout the slowest part of a report
  * (seconds of zlib for a few hundred rows); the same font as an uncompressed sfnt costs nothing.
+ * (fontkit's WOFF path also failed on Plex Mono's empty space glyph; the sfnt reads fine.)
  * Format: W3C WOFF File Format 1.0, sections 3–5.
  */
 import { readFileSync } from 'node:fs';
