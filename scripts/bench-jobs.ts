@@ -6,26 +6,16 @@
  *   - revisions computed and judged per second, with one worker process and with two
  *   - a new target version for a class of 10,000 loops: every loop judged again
  */
-import { chmodSync, mkdtempSync, rmSync } from 'node:fs';
-import { tmpdir } from 'node:os';
-import { join, resolve } from 'node:path';
+import { resolve } from 'node:path';
 import { spawn, type ChildProcess } from 'node:child_process';
-import { startCluster } from './lib/postgres';
-import { startS3Fake, s3Env } from './lib/s3';
-import { freePort } from './lib/ports';
-import { Supervisor } from './lib/processes';
-import { randomSecret } from './lib/secrets';
+import { s3Env } from './lib/s3';
+import { pct, runBench, type BenchServices } from './lib/bench';
 
 const root = resolve(import.meta.dirname, '..');
-const temp = mkdtempSync(join(tmpdir(), 'headroom-bench-'));
-// PostgreSQL runs as its own user and must reach its data folder inside.
-chmodSync(temp, 0o755);
-const supervisor = new Supervisor();
 const UPLOADS = Number(process.env.BENCH_UPLOADS ?? 40);
 const BATCH = Number(process.env.BENCH_BATCH ?? 600);
 const CLASS_LOOPS = Number(process.env.BENCH_CLASS_LOOPS ?? 10_000);
 
-const pct = (xs: number[], p: number) => [...xs].sort((a, b) => a - b)[Math.min(xs.length - 1, Math.floor(p * xs.length))];
 const model = (i: number) =>
 	new TextEncoder().encode(
 		JSON.stringify({
@@ -44,15 +34,8 @@ function startWorker(env: NodeJS.ProcessEnv): Promise<ChildProcess> {
 }
 const stopWorker = (c: ChildProcess) => new Promise((res) => (c.once('exit', res), c.kill('SIGTERM')));
 
-async function main() {
-	const pg = await startCluster({ dataDir: join(temp, 'pg'), port: await freePort(), logFile: join(temp, 'pg.log'), superuserPassword: randomSecret(), throwaway: true });
-	supervisor.defer('postgres', () => pg.stop(), () => pg.stopSync());
-	await pg.createDatabase('bench');
-	const s3Port = await freePort();
-	await startS3Fake(supervisor, { root, port: s3Port, dir: join(temp, 's3'), bucket: 'headroom' });
-	const url = new URL(pg.adminUrl);
-	url.pathname = '/bench';
-	const env: NodeJS.ProcessEnv = { ...process.env, DATABASE_URL: url.toString(), ...s3Env(s3Port, 'headroom'), NODE_ENV: 'production' };
+async function main({ pg, s3Port, databaseUrl }: BenchServices) {
+	const env: NodeJS.ProcessEnv = { ...process.env, DATABASE_URL: databaseUrl, ...s3Env(s3Port, 'headroom'), NODE_ENV: 'production' };
 	Object.assign(process.env, env);
 
 	// Imported after the environment is set: the server modules read it on first use.
@@ -143,12 +126,4 @@ async function main() {
 	await orm.close(true);
 }
 
-main()
-	.catch((e) => {
-		console.error(e);
-		process.exitCode = 1;
-	})
-	.finally(async () => {
-		await supervisor.stopAll();
-		rmSync(temp, { recursive: true, force: true });
-	});
+runBench('bench', root, main);

@@ -1,6 +1,8 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser, BrowserContext, Page } from 'playwright-core';
+import type { Browser } from 'playwright-core';
 import { baseUrl, launch, snap } from './support/browser';
+import { viewSettled } from './support/dashboard';
+import { signedIn as signInAs } from './support/session';
 
 let browser: Browser;
 beforeAll(async () => {
@@ -10,21 +12,14 @@ afterAll(async () => {
 	await browser?.close();
 });
 
-async function signedIn(email: string): Promise<{ context: BrowserContext; page: Page }> {
-	const context = await browser.newContext({ viewport: { width: 1280, height: 900 } });
-	const page = await context.newPage();
-	await page.goto(baseUrl() + '/signin');
-	await page.getByLabel('E-mail').fill(email);
-	await page.getByLabel('Password').fill('headroom-demo');
-	await page.getByRole('button', { name: 'Sign in', exact: true }).click();
-	await page.waitForURL(baseUrl() + '/');
-	return { context, page };
-}
+const signedIn = (email: string) => signInAs(browser, email);
 
 describe('registry in the browser', () => {
 	it('lets a lead change the phase-margin target of a class and shows the new version in the history', async () => {
 		const { context, page } = await signedIn('lead@headroom.test');
 		await page.getByRole('navigation', { name: 'Main' }).first().getByRole('link', { name: 'Classes' }).click();
+		// The dashboard links classes too: wait until the classes page is the one on screen.
+		await page.waitForURL(/\/classes$/);
 		await page.getByRole('link', { name: 'Current loop' }).click();
 		await page.waitForURL(/\/classes\/current$/);
 		const pm = page.getByLabel('Minimum phase margin (°)');
@@ -63,17 +58,23 @@ describe('registry in the browser', () => {
 
 	it('lists the demo loops with server-side sorting, filters and the verdict as text and shape', async () => {
 		const { context, page } = await signedIn('engineer@headroom.test');
+		// The old list address lands on the dashboard with the same query.
 		await page.goto(baseUrl() + '/loops?pageSize=50');
+		await page.waitForURL(baseUrl() + '/?pageSize=50');
 		const table = page.getByTestId('loop-table');
+
 		expect(await table.locator('tbody tr').count()).toBeGreaterThanOrEqual(30);
 		await expect(table.locator('[data-verdict="empty"]').first().innerText()).resolves.toContain('No revision');
 		await snap(page, 'registry-loops');
 
 		await table.getByRole('button', { name: /^Loop/ }).click();
 		await page.waitForURL(/sort=key&dir=desc/);
+		await viewSettled(page);
 		await page.getByLabel('Product').selectOption('tarn-af40');
 		await page.getByRole('button', { name: 'Apply filters' }).click();
 		await page.waitForURL(/product=tarn-af40/);
+		// The rows are fetched after the URL changes: wait for the view of this URL.
+		await viewSettled(page);
 		const keys = await table.locator('tbody tr td:first-child .font-mono').allInnerTexts();
 		expect(keys).toEqual([...keys].sort().reverse());
 		expect(keys).toContain('pll-weak-grid');

@@ -45,7 +45,7 @@ describe('model revisions in the browser', () => {
 		// The home page counts the loops per verdict, each count a link to that filter.
 		const counts = page.getByTestId('verdict-counts');
 		expect(await counts.innerText()).toMatch(/Unstable/);
-		expect(await counts.getByRole('link').first().getAttribute('href')).toBe('/loops?verdict=unstable');
+		expect(await counts.locator('[data-count-verdict="unstable"]').getAttribute('href')).toBe('/?verdict=unstable');
 		await snap(page, 'home-signed-in');
 		await page.goto(`${baseUrl()}/loops/${loop.id}`);
 		await page.getByRole('heading', { name: 'Model revisions' }).waitFor();

@@ -50,7 +50,7 @@ export const MARGIN_COLUMNS: MarginColumn[] = [
 		label: 'Delay margin',
 		csv: 'delay_margin_s',
 		actual: (w) => w.delayMarginS,
-		format: (v) => (Math.abs(v) < 1 ? `${sig(v * 1000)} ms` : `${sig(v)} s`)
+		format: (v) => (Math.abs(v) < 1e-3 ? `${sig(v * 1e6)} µs` : Math.abs(v) < 1 ? `${sig(v * 1000)} ms` : `${sig(v)} s`)
 	},
 	{
 		id: 'modulusMargin',

@@ -41,8 +41,6 @@ export interface LoopFilters {
 	dir?: 'asc' | 'desc';
 }
 
-/** The query parameters that filter (not sort or page): a dashboard link keeps exactly these. */
-export const FILTER_PARAMS = ['q', 'product', 'class', 'owner', 'verdict', 'failing', 'tag', 'changedSince', 'archived'] as const;
 
 // A date (midnight UTC) or a date-time with seconds optional and a zone (Z or ±hh:mm) optional.
 const ISO = /^\d{4}-\d{2}-\d{2}(?:[T ]\d{2}:\d{2}(?::\d{2}(?:\.\d{1,9})?)?(?:Z|[+-]\d{2}:?\d{2})?)?$/;
@@ -81,21 +79,11 @@ export function loopFiltersFrom(params: URLSearchParams): LoopFilters {
 	};
 }
 
-/** The filters back as query parameters (for links: the report, the export, a count). */
-export function filterQuery(f: LoopFilters): URLSearchParams {
-	const out = new URLSearchParams();
-	for (const name of FILTER_PARAMS) {
-		const v = f[name];
-		if (v === undefined) continue;
-		out.set(name, v instanceof Date ? v.toISOString() : v);
-	}
-	return out;
-}
-
-export const FROM = `from loop l
-	join product p on p.id = l.product_id
+/** The tables a loop row is listed, filtered and sorted with (aliases l, p, c, u). */
+export const JOINS = `join product p on p.id = l.product_id
 	join loop_class c on c.id = l.loop_class_id
 	join app_user u on u.id = l.owner_id`;
+export const FROM = `from loop l ${JOINS}`;
 
 const like = (q: string) => `%${q.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
 
@@ -103,26 +91,26 @@ const like = (q: string) => `%${q.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
 export function whereOf(f: LoopFilters, omit: (keyof LoopFilters)[] = []): { sql: string; params: unknown[] } {
 	const clauses: string[] = [];
 	const params: unknown[] = [];
+	const add = (sql: string, ...values: unknown[]) => {
+		clauses.push(sql);
+		params.push(...values);
+	};
 	const use = (k: keyof LoopFilters) => f[k] !== undefined && !omit.includes(k);
-	if (use('q')) {
-		clauses.push('(l.key ilike ? or l.name ilike ?)');
-		params.push(like(f.q!), like(f.q!));
-	}
-	if (use('product')) (clauses.push('p.key = ?'), params.push(f.product));
-	if (use('class')) (clauses.push('c.key = ?'), params.push(f.class));
+	if (use('q')) add('(l.key ilike ? or l.name ilike ?)', like(f.q!), like(f.q!));
+	if (use('product')) add('p.key = ?', f.product);
+	if (use('class')) add('c.key = ?', f.class);
 	if (use('owner')) {
-		if (isUuid(f.owner!)) (clauses.push('l.owner_id = ?'), params.push(f.owner));
-		else (clauses.push('u.email = ?'), params.push(f.owner!.toLowerCase()));
+		if (isUuid(f.owner!)) add('l.owner_id = ?', f.owner);
+		else add('u.email = ?', f.owner!.toLowerCase());
 	}
-	if (use('verdict')) (clauses.push('l.verdict = ?'), params.push(f.verdict));
-	if (use('failing')) (clauses.push('l.failing_criteria @> array[?::text]'), params.push(f.failing));
-	if (use('tag')) (clauses.push('l.tags @> array[?::text]'), params.push(f.tag));
+	if (use('verdict')) add('l.verdict = ?', f.verdict);
+	if (use('failing')) add('l.failing_criteria @> array[?::text]', f.failing);
+	if (use('tag')) add('l.tags @> array[?::text]', f.tag);
 	if (use('changedSince')) {
-		clauses.push('(l.verdict_changed_at >= ? or l.id in (select r.loop_id from revision r where r.uploaded_at >= ?))');
-		params.push(f.changedSince, f.changedSince);
+		add('(l.verdict_changed_at >= ? or l.id in (select r.loop_id from revision r where r.uploaded_at >= ?))', f.changedSince, f.changedSince);
 	}
 	const archived = omit.includes('archived') ? 'all' : (f.archived ?? 'active');
-	if (archived !== 'all') clauses.push(archived === 'active' ? 'l.archived_at is null' : 'l.archived_at is not null');
+	if (archived !== 'all') add(archived === 'active' ? 'l.archived_at is null' : 'l.archived_at is not null');
 	return { sql: clauses.length ? `where ${clauses.join(' and ')}` : '', params };
 }
 

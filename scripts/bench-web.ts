@@ -1,0 +1,290 @@
+/**
+ * `npm run bench:web`: the web server's read paths against a registry of 10,000 loops and
+ * 100,000 computed revisions, on throwaway local services (own PostgreSQL cluster and S3 fake,
+ * removed afterwards) and the built app (`node build`, production mode). Prints figures next to
+ * their targets and the ratio figure/target; it never fails on timing.
+ *   - GET /api/loops, filtered + sorted, 20 connections (autocannon) per filter mix:
+ *     p50/p95/p99, requests/s, errors — target p95 ≤ 50 ms
+ *   - the dashboard `/` first render for a signed-in session: server time (Server-Timing) and
+ *     time to first byte on loopback — target 300 ms
+ * Environment: BENCH_LOOPS (10000), BENCH_REVISIONS_PER_LOOP (10), BENCH_SECONDS (8 per mix),
+ * BENCH_RENDERS (30).
+ */
+import { resolve } from 'node:path';
+import autocannon from 'autocannon';
+import { s3Env } from './lib/s3';
+import { freePort, HOST } from './lib/ports';
+import { randomSecret } from './lib/secrets';
+import { pct, runBench, type BenchServices } from './lib/bench';
+import { appEnv, appProcess, override } from './lib/app';
+import { buildIfStale } from './lib/build';
+import { waitForHttp } from './lib/wait';
+import { mulberry32 } from './lib/loop-generator';
+import { syntheticResult } from './lib/synthetic-margins';
+
+const root = resolve(import.meta.dirname, '..');
+const LOOPS = Number(process.env.BENCH_LOOPS ?? 10_000);
+const PER_LOOP = Number(process.env.BENCH_REVISIONS_PER_LOOP ?? 10);
+const SECONDS = Number(process.env.BENCH_SECONDS ?? 8);
+const RENDERS = Number(process.env.BENCH_RENDERS ?? 30);
+const CONNECTIONS = 20;
+const PASSWORD = 'bench-password-1';
+
+const ms = (v: number) => `${v.toFixed(1)} ms`;
+const ratio = (figure: number, target: number) => `${(figure / target).toFixed(2)}× target`;
+
+/** What a later measurement gets: the running app, a signed-in cookie and a read token. */
+export interface BenchContext {
+	origin: string;
+	cookie: string;
+	token: string;
+	env: NodeJS.ProcessEnv;
+}
+type Measurement = (ctx: BenchContext) => Promise<void>;
+
+// ── Measurements other features add ───────────────────────────────────────────────────────
+// Reports: the "200-loop PDF ≤ 10 s" figure belongs here — push a Measurement that requests a
+// 200-loop compliance report from the running app (ctx.origin, ctx.cookie or ctx.token) and
+// prints its time next to the 10 s target, as the two measurements below do.
+const LATER_MEASUREMENTS: Measurement[] = [];
+// ────────────────────────────────────────────────────────────────────────────────────────────
+
+/** 500 distinct worst cases, spread like a real product line: most pass, some short, a few unstable. */
+function templates(n = 500) {
+	const rand = mulberry32(20261202);
+	return Array.from({ length: n }, (_, i) =>
+		syntheticResult({
+			phaseMarginDeg: 28 + rand() * 45,
+			upperGainMarginDb: rand() < 0.05 ? null : 3 + rand() * 14,
+			delayMarginSeconds: 0.0004 + rand() * 0.008,
+			modulusMargin: 0.35 + rand() * 0.45,
+			crossoverHz: 20 + rand() * 1500,
+			stable: rand() > 0.03,
+			caseName: ['nominal', 'cold', 'hot', 'worn'][i % 4]
+		})
+	);
+}
+
+/** Filtered + sorted pages of the loop list, as a dashboard user asks for them. */
+function filterMixes(): [string, string][] {
+	const since = new Date(Date.now() - 14 * 86_400_000).toISOString().slice(0, 10);
+	return [
+		['non-compliant speed, by PM', '/api/loops?verdict=noncompliant&class=speed&sort=phaseMargin&dir=asc&pageSize=50'],
+		['one product short on GM, by shortfall', '/api/loops?product=tarn-af40&failing=upperGainMargin&sort=shortfall&dir=desc&pageSize=50'],
+		['changed in 14 days, by update', `/api/loops?changedSince=${since}&sort=updatedAt&dir=desc&pageSize=50`],
+		['owner + tag + text, by modulus', '/api/loops?owner=engineer07%40bench.test&tag=rig-b&q=ax0&sort=modulusMargin&pageSize=50'],
+		['all loops, page 120, by delay', '/api/loops?sort=delayMargin&dir=desc&page=120&pageSize=50']
+	];
+}
+
+async function seed(env: NodeJS.ProcessEnv) {
+	const { MikroORM } = await import('@mikro-orm/postgresql');
+	const { ormOptions } = await import('../src/lib/server/db/options');
+	const { UserSchema } = await import('../src/lib/server/db/entities');
+	const { hashPassword } = await import('../src/lib/server/auth/passwords');
+	const { createToken } = await import('../src/lib/server/auth/tokens');
+	const { createProduct } = await import('../src/lib/server/registry/products');
+	const { createClass } = await import('../src/lib/server/registry/classes');
+	const { judgeLoops } = await import('../src/lib/server/verdicts/judge-loops');
+
+	const orm = await MikroORM.init(ormOptions(env.DATABASE_URL!));
+	const em = () => orm.em.fork();
+	const e0 = em();
+	const u = e0.create(UserSchema, {
+		email: 'bench-lead@bench.test',
+		name: 'Bench Lead',
+		role: 'lead',
+		active: true,
+		passwordHash: await hashPassword(PASSWORD),
+		createdAt: new Date()
+	});
+	await e0.flush();
+	const lead = { id: u.id, email: u.email, name: u.name, role: 'lead' as const };
+	const { value: token } = await createToken(em(), lead, { name: 'bench', scopes: ['read'] });
+	const products = ['s2', 'sp7', 'af40', 'm1', 'h3', 'k9', 'r5', 'x2'].map((k) => `tarn-${k}`);
+	for (const key of products) await createProduct(em(), lead, { key, name: `Tarn ${key.slice(5).toUpperCase()}` });
+	const classes: [string, string, Record<string, string>][] = [
+		['current', 'Current loop', { minUpperGainMarginDb: '8', minPhaseMarginDeg: '50', minModulusMargin: '0.5' }],
+		['speed', 'Speed loop', { minUpperGainMarginDb: '6', minPhaseMarginDeg: '45', maxPeakSensitivity: '2' }],
+		['position', 'Position loop', { minUpperGainMarginDb: '6', minPhaseMarginDeg: '50', minDelayMarginSeconds: '0.004' }],
+		['dc-link', 'DC-link voltage loop', { minUpperGainMarginDb: '6', minPhaseMarginDeg: '45' }],
+		['pll', 'Grid PLL', { minUpperGainMarginDb: '6', minPhaseMarginDeg: '45', minModulusMargin: '0.45' }],
+		['thermal', 'Temperature loop', { minUpperGainMarginDb: '4.6', minPhaseMarginDeg: '30' }]
+	];
+	for (const [key, name, targets] of classes) await createClass(em(), lead, { key, name, targets });
+	const conn = em().getConnection();
+	const t0 = performance.now();
+	await conn.execute(
+		`insert into app_user (email, name, role, active, created_at)
+		 select 'engineer' || lpad(g::text, 2, '0') || '@bench.test', 'Engineer ' || lpad(g::text, 2, '0'), 'engineer', true, now()
+		 from generate_series(1, 24) g`
+	);
+	// Loops spread over products, classes and owners; keys like tarn-s2/ax0042-speed.
+	await conn.execute(
+		`with p as (select id, row_number() over (order by key) - 1 as i from product),
+		      c as (select id, key, row_number() over (order by key) - 1 as i from loop_class),
+		      o as (select id, row_number() over (order by email) - 1 as i from app_user where email like 'engineer%')
+		 insert into loop (id, product_id, loop_class_id, key, name, owner_id, tags, note, verdict, created_at, updated_at)
+		 select gen_random_uuid(), p.id, c.id, 'ax' || lpad(g::text, 5, '0') || '-' || c.key, 'Axis ' || g || ' ' || c.key || ' loop', o.id,
+		        array['axis-' || (g % 4), case when g % 3 = 0 then 'rig-b' else 'field' end], '', 'empty',
+		        now() - interval '200 days', now() - (g % 180) * interval '1 day'
+		 from generate_series(1, ?) g
+		 join p on p.i = g % 8 join c on c.i = (g / 8) % 6 join o on o.i = g % 24`,
+		[LOOPS]
+	);
+	await conn.execute('create table bench_template (i int primary key, result jsonb not null)');
+	await conn.execute(`insert into bench_template select (e->>'i')::int, e->'r' from jsonb_array_elements(?::jsonb) e`, [
+		JSON.stringify(templates().map((r, i) => ({ i, r })))
+	]);
+	// PER_LOOP computed revisions per loop, about nine days apart, each with its margin report.
+	await conn.execute(
+		`insert into revision (id, loop_id, number, state, object_key, file_name, size_bytes, sha256, uploaded_by_id, uploaded_at, computed_at)
+		 select gen_random_uuid(), l.id, n, 'computed', 'bench/' || l.id || '/' || n, 'model.json', 2000, md5(l.id::text || n), l.owner_id,
+		        now() - (? - n) * interval '9 days' - (abs(hashtext(l.id::text)) % 86400) * interval '1 second',
+		        now() - (? - n) * interval '9 days'
+		 from loop l cross join generate_series(1, ?) n`,
+		[PER_LOOP, PER_LOOP, PER_LOOP]
+	);
+	await conn.execute(
+		`insert into margin_report (revision_id, engine_version, result, compute_ms)
+		 select r.id, 'bench', t.result, 3 from revision r join bench_template t on t.i = abs(hashtext(r.id::text)) % 500`
+	);
+	await conn.execute('drop table bench_template');
+	// A few hundred active phase-margin deviations, so some loops are covered.
+	await conn.execute(
+		`insert into deviation (loop_id, criteria, min_phase_margin_deg, reason, approved_by_id, starts_at, expires_at)
+		 select id, array['phaseMargin'], 25, 'Bench: field trial with the soft gain set.', ?, now() - interval '10 days', now() + interval '60 days'
+		 from loop where abs(hashtext(id::text)) % 25 = 0`,
+		[lead.id]
+	);
+	const seeded = performance.now() - t0;
+	const ids = (await conn.execute<{ id: string }[]>('select id from loop')).map((r) => r.id);
+	const t1 = performance.now();
+	await em().transactional((tx) => judgeLoops(tx, ids, 'reconcile'));
+	const judged = performance.now() - t1;
+	// Verdicts that changed over the last quarter, for `changedSince`.
+	await conn.execute(`update loop set verdict_changed_at = now() - (abs(hashtext(id::text || 'v')) % 90) * interval '1 day'`);
+	await conn.execute('vacuum analyze');
+	const [counts] = await conn.execute<{ revisions: number; verdicts: string }[]>(
+		`select (select count(*)::int from revision) as revisions,
+		        (select string_agg(verdict || ' ' || n, ', ' order by n desc) from (select verdict, count(*) n from loop group by verdict) v) as verdicts`
+	);
+	console.log(`seeded ${ids.length} loops, ${counts.revisions} revisions in ${(seeded / 1000).toFixed(1)} s; judged in ${(judged / 1000).toFixed(1)} s (${counts.verdicts})`);
+	// The database's own share of each mix, without HTTP, auth or contention from the load.
+	const { listQuery, loopFiltersFrom } = await import('../src/lib/server/registry/loops');
+	const { pagingFrom, offsetOf } = await import('../src/lib/server/registry/common');
+	console.log('\nSQL of each mix alone (EXPLAIN ANALYZE execution time, median of 5):');
+	for (const [name, path] of filterMixes()) {
+		const params = new URL(path, 'http://x').searchParams;
+		const paging = pagingFrom(params);
+		const q = listQuery(loopFiltersFrom(params), paging.pageSize, offsetOf(paging));
+		const times: number[] = [];
+		for (let i = 0; i < 5; i++) {
+			const [row] = await conn.execute<{ 'QUERY PLAN': [{ 'Execution Time': number }] }[]>(`explain (analyze, format json) ${q.sql}`, q.params);
+			times.push(row['QUERY PLAN'][0]['Execution Time']);
+		}
+		console.log(`  ${name.padEnd(38)} ${ms(pct(times, 0.5))}`);
+	}
+	await orm.close(true);
+	return { token, email: lead.email };
+}
+
+/** Signs in through the /signin form like a browser and returns the session cookie. */
+async function signIn(origin: string, email: string): Promise<string> {
+	const body = new URLSearchParams({ email, password: PASSWORD, next: '/' });
+	const res = await fetch(`${origin}/signin?/password`, {
+		method: 'POST',
+		body,
+		redirect: 'manual',
+		headers: { origin, 'content-type': 'application/x-www-form-urlencoded', accept: 'text/html' }
+	});
+	const cookie = res.headers
+		.getSetCookie()
+		.map((c) => c.split(';')[0])
+		.find((c) => c.startsWith('authjs.session-token='));
+	if (res.status !== 303 || !cookie) throw new Error(`sign-in failed: ${res.status} ${await res.text()}`);
+	return cookie;
+}
+
+async function loadMix(origin: string, token: string, name: string, path: string) {
+	const times: number[] = [];
+	const result = await new Promise<autocannon.Result>((done, fail) => {
+		const instance = autocannon(
+			{ url: origin + path, connections: CONNECTIONS, duration: SECONDS, headers: { authorization: `Bearer ${token}`, accept: 'application/json' } },
+			(err, res) => (err ? fail(err) : done(res))
+		);
+		// Every response's time, for percentiles autocannon does not report (p95).
+		instance.on('response', (_client, _status, _bytes, responseTime) => times.push(responseTime));
+	});
+	const errors = result.errors + result.timeouts + result.non2xx;
+	const p95 = pct(times, 0.95);
+	console.log(
+		`  ${name.padEnd(38)} p50 ${ms(pct(times, 0.5))}  p95 ${ms(p95)}  p99 ${ms(pct(times, 0.99))}  ` +
+			`${result.requests.average.toFixed(0)} req/s  errors ${errors}  → p95 ${ratio(p95, 50)}`
+	);
+	return { p95, errors };
+}
+
+async function renders(origin: string, cookie: string, path: string) {
+	const server: number[] = [];
+	const ttfb: number[] = [];
+	for (let i = 0; i < RENDERS; i++) {
+		const t0 = performance.now();
+		const res = await fetch(origin + path, { headers: { cookie, accept: 'text/html' }, redirect: 'manual' });
+		ttfb.push(performance.now() - t0);
+		if (res.status !== 200) throw new Error(`${path} answered ${res.status}`);
+		const html = await res.text();
+		if (!html.includes('data-testid="loop-table"')) throw new Error(`${path} did not render the loop table`);
+		const dur = /dashboard;[^,]*dur=([\d.]+)/.exec(res.headers.get('server-timing') ?? '')?.[1];
+		if (dur) server.push(Number(dur));
+	}
+	const p50 = pct(server, 0.5);
+	const p95 = pct(server, 0.95);
+	console.log(
+		`  ${path.padEnd(34)} server p50 ${ms(p50)}  p95 ${ms(p95)}  · TTFB p50 ${ms(pct(ttfb, 0.5))}  p95 ${ms(pct(ttfb, 0.95))}  → p95 TTFB ${ratio(pct(ttfb, 0.95), 300)}`
+	);
+}
+
+async function main({ supervisor, pg, s3Port, databaseUrl }: BenchServices) {
+	const webPort = await freePort();
+	const env = appEnv({
+		databaseUrl,
+		s3Port,
+		bucket: 'headroom',
+		// No mail is sent by the read paths measured here.
+		smtpPort: 1,
+		mailWebPort: 1,
+		webPort,
+		authSecret: randomSecret(),
+		storageEventsSecret: randomSecret(),
+		nodeEnv: 'production'
+	});
+	Object.assign(process.env, { ...s3Env(s3Port, 'headroom'), DATABASE_URL: env.DATABASE_URL });
+	await buildIfStale(supervisor, root, process.env, override('build'));
+	await supervisor.runOrThrow(appProcess(root, 'migrate', env));
+	console.log(`\nHeadroom web benchmark (PostgreSQL ${pg.port}, S3 fake ${s3Port}, web ${webPort})`);
+	const { token, email } = await seed(env);
+	const web = supervisor.start(appProcess(root, 'web', env));
+	const origin = `http://${HOST}:${webPort}`;
+	await waitForHttp('the web server', `${origin}/api/health`, { child: web, timeoutMs: 90_000 });
+	const cookie = await signIn(origin, email);
+	// Warm up: the first requests load lazily imported chunks and fill the connection pool.
+	for (let i = 0; i < 20; i++) await (await fetch(`${origin}/api/loops?pageSize=5`, { headers: { authorization: `Bearer ${token}` } })).text();
+	for (let i = 0; i < 5; i++) await (await fetch(`${origin}/`, { headers: { cookie } })).text();
+
+	const mixes = filterMixes();
+	console.log(`\nGET /api/loops, ${CONNECTIONS} connections, ${SECONDS} s per mix (target p95 ≤ 50 ms):`);
+	const runs = [];
+	for (const [name, path] of mixes) runs.push(await loadMix(origin, token, name, path));
+	const worst = Math.max(...runs.map((r) => r.p95));
+	console.log(`  worst p95 over the mixes: ${ms(worst)} (${ratio(worst, 50)}); errors ${runs.reduce((a, r) => a + r.errors, 0)}`);
+
+	console.log(`\nDashboard first render, signed in, ${RENDERS} sequential requests each (target 300 ms):`);
+	await renders(origin, cookie, '/');
+	await renders(origin, cookie, '/?verdict=noncompliant&class=position&sort=shortfall&dir=desc');
+
+	for (const measure of LATER_MEASUREMENTS) await measure({ origin, cookie, token, env });
+	console.log('\n(2 CPU cores shared by the database, the web server and the load generator.)');
+}
+
+runBench('bench-web', root, main);
