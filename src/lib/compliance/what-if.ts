@@ -66,7 +66,8 @@ const MEETS = new Set(['compliant', 'covered']);
 
 /** Margins and verdict at a gain offset in dB (0 dB = as modelled). */
 export function whatIfAt(input: WhatIfInput, gainDb: number): WhatIfPoint {
-	if (!Number.isFinite(gainDb)) throw new RangeError(`gain must be a finite number of dB, got ${gainDb}`);
+	if (!Number.isFinite(gainDb))
+		throw new RangeError(`gain must be a finite number of dB, got ${gainDb}`);
 	const gainScale = dbToScale(gainDb);
 	const margins = computeMargins(input.model, { gainScale });
 	const judgement = judge({
@@ -106,7 +107,8 @@ export function meetsRange(input: WhatIfInput, options: RangeOptions = {}): Meet
 	const span = options.spanDb ?? 40;
 	const step = options.stepDb ?? 0.5;
 	const tol = options.toleranceDb ?? 0.005;
-	if (!(span > 0) || !(step > 0) || !(tol > 0)) throw new RangeError('spanDb, stepDb and toleranceDb must be > 0');
+	if (!(span > 0) || !(step > 0) || !(tol > 0))
+		throw new RangeError('spanDb, stepDb and toleranceDb must be > 0');
 	const n = Math.ceil(span / step);
 	const grid: number[] = [];
 	for (let i = -n; i <= n; i++) grid.push((i * span) / n);
@@ -151,7 +153,10 @@ export function describeRange(r: MeetsRange): string {
 	};
 	if (r.nominalMeets && r.interval) return `Meets every target ${part(r.interval)}.`;
 	if (r.interval) {
-		const others = r.intervals.length > 1 ? ` (and ${r.intervals.length - 1} more range${r.intervals.length > 2 ? 's' : ''} within ${db(lo)} to ${db(hi)})` : '';
+		const others =
+			r.intervals.length > 1
+				? ` (and ${r.intervals.length - 1} more range${r.intervals.length > 2 ? 's' : ''} within ${db(lo)} to ${db(hi)})`
+				: '';
 		return `Does not meet its targets at nominal gain; it would ${part(r.interval)}${others}.`;
 	}
 	return `Does not meet its targets at any gain from ${db(lo)} to ${db(hi)}.`;

@@ -22,7 +22,15 @@ import { scaleLinear, scaleLog } from 'd3-scale';
 import type { CaseResponse, ResponsePoint } from '../margins/sampler';
 import type { MarginsResult } from '../margins/types';
 import { clipPolyline, polylinesPath, segmentPath, type Pt, type Rect } from './path';
-import { formatHz, formatNumber, logTicks, niceDomain, pickStep, stepTicks, type Tick } from './ticks';
+import {
+	formatHz,
+	formatNumber,
+	logTicks,
+	niceDomain,
+	pickStep,
+	stepTicks,
+	type Tick
+} from './ticks';
 
 export interface Insets {
 	top: number;
@@ -79,6 +87,8 @@ export interface GainCrossoverMarker {
 	/** Where the phase curve is at this frequency (phase panel; clamped into the panel). */
 	phaseY: number;
 	label: string;
+	/** False when the marker's point lies outside its panel (its y was pulled onto the edge). */
+	inside: boolean;
 }
 
 export interface PhaseCrossoverMarker {
@@ -94,6 +104,8 @@ export interface PhaseCrossoverMarker {
 	/** Where the magnitude curve is at this frequency (clamped into the magnitude panel). */
 	magnitudeY: number;
 	label: string;
+	/** False when the critical line lies outside the phase domain (y pulled onto the edge). */
+	inside: boolean;
 }
 
 export interface DimensionLine {
@@ -117,6 +129,11 @@ export interface DimensionLine {
 	labelAnchor: 'start' | 'end';
 	/** True when an end fell outside its panel and was pulled onto the edge. */
 	clipped: boolean;
+	/**
+	 * True for the crossover the case's reported margin comes from (upper or lower gain margin,
+	 * phase margin); the others are drawn too, and a crowded plot may leave their labels out.
+	 */
+	primary: boolean;
 }
 
 export interface ReferenceLine {
@@ -165,7 +182,11 @@ export function nearestIndex(points: readonly ResponsePoint[], hz: number): numb
 }
 
 /** A response value interpolated linearly in log frequency; NaN outside the sampled band. */
-export function valueAt(points: readonly ResponsePoint[], hz: number, key: 'magnitudeDb' | 'phaseDeg'): number {
+export function valueAt(
+	points: readonly ResponsePoint[],
+	hz: number,
+	key: 'magnitudeDb' | 'phaseDeg'
+): number {
 	const n = points.length;
 	if (n === 0 || hz < points[0].hz || hz > points[n - 1].hz) return NaN;
 	let lo = 0;
@@ -184,7 +205,8 @@ export function valueAt(points: readonly ResponsePoint[], hz: number, key: 'magn
 }
 
 const finite = (vs: number[]) => vs.filter(Number.isFinite);
-const clamp = (v: number, a: number, b: number) => Math.min(Math.max(v, Math.min(a, b)), Math.max(a, b));
+const clamp = (v: number, a: number, b: number) =>
+	Math.min(Math.max(v, Math.min(a, b)), Math.max(a, b));
 
 function extent(vs: number[]): [number, number] | null {
 	const f = finite(vs);
@@ -244,7 +266,12 @@ export function bodeGeometry(
 	const left = ins.left;
 	const right = Math.max(left + 20, width - ins.right);
 	const magnitudePanel: Rect = { left, right, top: ins.top, bottom: ins.top + inner * split };
-	const phasePanel: Rect = { left, right, top: magnitudePanel.bottom + gap, bottom: height - ins.bottom };
+	const phasePanel: Rect = {
+		left,
+		right,
+		top: magnitudePanel.bottom + gap,
+		bottom: height - ins.bottom
+	};
 
 	const all = responses.flatMap((r) => r.points);
 	const cases = margins?.cases ?? [];
@@ -270,18 +297,31 @@ export function bodeGeometry(
 			if (Number.isFinite(ph)) phaseEnds.push(criticalLineNear(ph));
 		}
 	});
-	const gmEnds = cases.flatMap((c) => c.phaseCrossovers.map((p) => -p.gainMarginDb)).filter(Number.isFinite);
+	const gmEnds = cases
+		.flatMap((c) => c.phaseCrossovers.map((p) => -p.gainMarginDb))
+		.filter(Number.isFinite);
 
 	const magDomain =
 		options.magnitudeDomainDb ??
 		(() => {
-			const [lo, hi] = fitDomain(all.map((p) => p.magnitudeDb), [0, ...gmEnds], options.maxMagnitudeSpanDb ?? 160, 6);
+			const [lo, hi] = fitDomain(
+				all.map((p) => p.magnitudeDb),
+				[0, ...gmEnds],
+				options.maxMagnitudeSpanDb ?? 160,
+				6
+			);
 			const step = pickStep(hi - lo, [10, 20, 40, 50, 100], 5);
 			return niceDomain(lo, hi, step);
 		})();
 	const magPanelH = magnitudePanel.bottom - magnitudePanel.top;
-	const magStep = pickStep(magDomain[1] - magDomain[0], [5, 10, 20, 40, 50, 100], Math.max(2, Math.floor(magPanelH / 28)));
-	const magScale = scaleLinear().domain(magDomain).range([magnitudePanel.bottom, magnitudePanel.top]);
+	const magStep = pickStep(
+		magDomain[1] - magDomain[0],
+		[5, 10, 20, 40, 50, 100],
+		Math.max(2, Math.floor(magPanelH / 28))
+	);
+	const magScale = scaleLinear()
+		.domain(magDomain)
+		.range([magnitudePanel.bottom, magnitudePanel.top]);
 	const magnitude = axis(magScale, magDomain, [magnitudePanel.bottom, magnitudePanel.top], (toPx) =>
 		stepTicks(magDomain, magStep, toPx, 'dB')
 	);
@@ -289,12 +329,21 @@ export function bodeGeometry(
 	const phDomain =
 		options.phaseDomainDeg ??
 		(() => {
-			const [lo, hi] = fitDomain(all.map((p) => p.phaseDeg), phaseEnds, options.maxPhaseSpanDeg ?? 1080, 15);
+			const [lo, hi] = fitDomain(
+				all.map((p) => p.phaseDeg),
+				phaseEnds,
+				options.maxPhaseSpanDeg ?? 1080,
+				15
+			);
 			const step = pickStep(hi - lo, [45, 90, 180, 360], 5);
 			return niceDomain(lo, hi, step);
 		})();
 	const phPanelH = phasePanel.bottom - phasePanel.top;
-	const phStep = pickStep(phDomain[1] - phDomain[0], [15, 30, 45, 90, 180, 360], Math.max(2, Math.floor(phPanelH / 28)));
+	const phStep = pickStep(
+		phDomain[1] - phDomain[0],
+		[15, 30, 45, 90, 180, 360],
+		Math.max(2, Math.floor(phPanelH / 28))
+	);
 	const phScale = scaleLinear().domain(phDomain).range([phasePanel.bottom, phasePanel.top]);
 	const phase = axis(phScale, phDomain, [phasePanel.bottom, phasePanel.top], (toPx) =>
 		stepTicks(phDomain, phStep, toPx, '°')
@@ -317,22 +366,36 @@ export function bodeGeometry(
 
 	const hLine = (y: number, panel: Rect) => segmentPath([panel.left, y], [panel.right, y]);
 	const zeroY = magScale(0);
-	const zeroDb: ReferenceLine = { value: 0, y: zeroY, path: hLine(zeroY, magnitudePanel), label: '0 dB' };
+	const zeroDb: ReferenceLine = {
+		value: 0,
+		y: zeroY,
+		path: hLine(zeroY, magnitudePanel),
+		label: '0 dB'
+	};
 	const criticalLines: ReferenceLine[] = [];
 	for (let k = Math.ceil((phDomain[0] + 180) / 360); -180 + 360 * k <= phDomain[1]; k++) {
 		const deg = -180 + 360 * k;
 		const y = phScale(deg);
-		criticalLines.push({ value: deg, y, path: hLine(y, phasePanel), label: `${formatNumber(deg, 5)}°` });
+		criticalLines.push({
+			value: deg,
+			y,
+			path: hLine(y, phasePanel),
+			label: `${formatNumber(deg, 5)}°`
+		});
 	}
 
-	const nyquistLines = [...new Set(responses.map((r) => r.nyquistHz).filter((h): h is number => h !== undefined))]
+	const nyquistLines = [
+		...new Set(responses.map((r) => r.nyquistHz).filter((h): h is number => h !== undefined))
+	]
 		.filter((hz) => hz >= hzDomain[0] && hz <= hzDomain[1])
 		.map((hz) => {
 			const px = xScale(hz);
 			return {
 				hz,
 				x: px,
-				path: segmentPath([px, magnitudePanel.top], [px, magnitudePanel.bottom]) + segmentPath([px, phasePanel.top], [px, phasePanel.bottom]),
+				path:
+					segmentPath([px, magnitudePanel.top], [px, magnitudePanel.bottom]) +
+					segmentPath([px, phasePanel.top], [px, phasePanel.bottom]),
 				label: `Nyquist ${formatHz(hz)}`
 			};
 		});
@@ -361,12 +424,25 @@ export function bodeGeometry(
 				x: px,
 				y: zeroY,
 				phaseY: inPh(phaseY),
-				label: formatHz(g.hz)
+				label: formatHz(g.hz),
+				inside: zeroY >= magnitudePanel.top && zeroY <= magnitudePanel.bottom
 			});
 			if (!Number.isFinite(ph)) continue;
 			const ref = criticalLineNear(ph - g.phaseMarginDeg);
 			phaseMarginLines.push(
-				dimension('phase-margin', c.name, caseIndex, g.hz, g.phaseMarginDeg, px, phaseY, phScale(ref), phasePanel, `PM ${formatNumber(g.phaseMarginDeg, 3)}°`)
+				dimension(
+					'phase-margin',
+					c.name,
+					caseIndex,
+					g.hz,
+					g.phaseMarginDeg,
+					px,
+					phaseY,
+					phScale(ref),
+					phasePanel,
+					`PM ${formatNumber(g.phaseMarginDeg, 3)}°`,
+					g.hz === c.phaseMarginHz
+				)
 			);
 		}
 		for (const p of c.phaseCrossovers) {
@@ -375,6 +451,7 @@ export function bodeGeometry(
 			const ph = valueAt(pts, p.hz, 'phaseDeg');
 			const criticalDeg = criticalLineNear(Number.isFinite(ph) ? ph : -180);
 			const magY = magScale(-p.gainMarginDb);
+			const critY = phScale(criticalDeg);
 			phaseCrossovers.push({
 				caseName: c.name,
 				caseIndex,
@@ -382,15 +459,31 @@ export function bodeGeometry(
 				gainMarginDb: p.gainMarginDb,
 				criticalDeg,
 				x: px,
-				y: inPh(phScale(criticalDeg)),
+				y: inPh(critY),
 				magnitudeY: inMag(magY),
-				label: formatHz(p.hz)
+				label: formatHz(p.hz),
+				inside: critY >= phasePanel.top && critY <= phasePanel.bottom
 			});
 			gainMarginLines.push(
-				dimension('gain-margin', c.name, caseIndex, p.hz, p.gainMarginDb, px, magY, zeroY, magnitudePanel, `GM ${formatNumber(p.gainMarginDb, 3)} dB`)
+				dimension(
+					'gain-margin',
+					c.name,
+					caseIndex,
+					p.hz,
+					p.gainMarginDb,
+					px,
+					magY,
+					zeroY,
+					magnitudePanel,
+					`GM ${formatNumber(p.gainMarginDb, 3)} dB`,
+					p.hz === c.upperGainMarginHz || p.hz === c.lowerGainMarginHz
+				)
 			);
 		}
 	});
+
+	markNearest(gainMarginLines);
+	markNearest(phaseMarginLines);
 
 	return {
 		width,
@@ -411,6 +504,42 @@ export function bodeGeometry(
 	};
 }
 
+/**
+ * The dimension lines whose labels can be written without overlapping one another: primary lines
+ * first, smallest margin first among them. Labels are estimated at `charWidth` px per character, `lineHeight` tall.
+ */
+export function labelledLines(
+	lines: readonly DimensionLine[],
+	charWidth = 6.2,
+	lineHeight = 13
+): DimensionLine[] {
+	const boxes: { l: number; r: number; t: number; b: number }[] = [];
+	const out: DimensionLine[] = [];
+	// primary first, and among them the smallest margin (the one the worst case reports)
+	const ordered = [...lines].sort(
+		(a, b) => Number(b.primary) - Number(a.primary) || Math.abs(a.value) - Math.abs(b.value)
+	);
+	for (const line of ordered) {
+		const w = line.label.length * charWidth;
+		const l = line.labelAnchor === 'start' ? line.labelX : line.labelX - w;
+		const box = { l, r: l + w, t: line.labelY - lineHeight / 2, b: line.labelY + lineHeight / 2 };
+		if (boxes.some((o) => box.l < o.r && box.r > o.l && box.t < o.b && box.b > o.t)) continue;
+		boxes.push(box);
+		out.push(line);
+	}
+	return out;
+}
+
+/** A case without a reported margin (e.g. unstable) still gets its smallest one as primary. */
+function markNearest(lines: DimensionLine[]) {
+	const byCase = new Map<number, DimensionLine[]>();
+	for (const l of lines) byCase.set(l.caseIndex, [...(byCase.get(l.caseIndex) ?? []), l]);
+	for (const group of byCase.values()) {
+		if (group.some((l) => l.primary)) continue;
+		group.reduce((a, b) => (Math.abs(b.value) < Math.abs(a.value) ? b : a)).primary = true;
+	}
+}
+
 function dimension(
 	kind: DimensionLine['kind'],
 	caseName: string,
@@ -421,7 +550,8 @@ function dimension(
 	rawY1: number,
 	rawY2: number,
 	panel: Rect,
-	label: string
+	label: string,
+	primary: boolean
 ): DimensionLine {
 	const y1 = clamp(rawY1, panel.top, panel.bottom);
 	const y2 = clamp(rawY2, panel.top, panel.bottom);
@@ -443,6 +573,7 @@ function dimension(
 		labelX: flip ? x - 6 : x + 6,
 		labelY: (y1 + y2) / 2,
 		labelAnchor: flip ? 'end' : 'start',
-		clipped: y1 !== rawY1 || y2 !== rawY2
+		clipped: y1 !== rawY1 || y2 !== rawY2,
+		primary
 	};
 }

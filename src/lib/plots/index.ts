@@ -6,6 +6,7 @@
 export {
 	bodeGeometry,
 	criticalLineNear,
+	labelledLines,
 	nearestIndex,
 	valueAt,
 	type Axis,
@@ -28,5 +29,13 @@ export {
 	type NyquistGeometry,
 	type NyquistOptions
 } from './nyquist';
-export { clipPolyline, polylinesPath, polygonPath, segmentPath, arcPoints, type Pt, type Rect } from './path';
+export {
+	clipPolyline,
+	polylinesPath,
+	polygonPath,
+	segmentPath,
+	arcPoints,
+	type Pt,
+	type Rect
+} from './path';
 export { formatHz, formatNumber, formatSigned, logTicks, type Tick } from './ticks';

@@ -8,7 +8,7 @@
  *   region they forbid.
  * - One unit of Re and one of Im take the same number of pixels (circles stay round). The view
  *   window is fitted around the −1 point, the unit circle and the curve where |L| ≤ `fitLimit`
- *   (default 4) unless `center` / `radius` fix it; curves are clipped to `frame`, so a loop with
+ *   (default 2.5) unless `center` / `radius` fix it; curves are clipped to `frame`, so a loop with
  *   integrators that runs off to infinity still draws as a clean line to the edge.
  * - The forbidden region of the targets: the disc |1 + L| < required modulus margin (the larger
  *   of min modulus margin and 1 / max peak sensitivity), the segments of the negative real axis
@@ -24,7 +24,15 @@ import type { Targets } from '../compliance/criteria';
 import type { CaseResponse } from '../margins/sampler';
 import type { MarginsResult } from '../margins/types';
 import { nearestIndex, type Axis, type Insets } from './bode';
-import { arcPoints, clipPolyline, polygonPath, polylinesPath, segmentPath, type Pt, type Rect } from './path';
+import {
+	arcPoints,
+	clipPolyline,
+	polygonPath,
+	polylinesPath,
+	segmentPath,
+	type Pt,
+	type Rect
+} from './path';
 import { formatNumber, pickStep, stepTicks } from './ticks';
 
 export interface NyquistOptions {
@@ -38,7 +46,7 @@ export interface NyquistOptions {
 	/** Fix the view: centre (re, im) and half-size in units of L. */
 	center?: [number, number];
 	radius?: number;
-	/** The curve is followed out to this |L| when fitting the view (default 4). */
+	/** The curve is followed out to this |L| when fitting the view (default 2.5). */
 	fitLimit?: number;
 }
 
@@ -71,7 +79,13 @@ export interface ForbiddenRegion {
 	/** |1 + L| < radius: closed polygon, fill it. */
 	disc: { radius: number; path: string; label: string } | null;
 	/** Apollonius disc ruled out by a disk-gain-margin target; closed polygon. */
-	diskMarginDisc: { alpha: number; centre: number; radius: number; path: string; label: string } | null;
+	diskMarginDisc: {
+		alpha: number;
+		centre: number;
+		radius: number;
+		path: string;
+		label: string;
+	} | null;
 	/** Stretches of the negative real axis (stroke them thick). */
 	gainSegments: { from: number; to: number; path: string; label: string }[];
 	/** Arc of the unit circle within ±degrees of −1 (stroke it thick). */
@@ -100,7 +114,8 @@ export interface NyquistGeometry {
 
 const DEFAULT_INSETS: Insets = { top: 10, right: 14, bottom: 34, left: 50 };
 
-const present = (v: string | null | undefined): v is string => v !== null && v !== undefined && v !== '';
+const present = (v: string | null | undefined): v is string =>
+	v !== null && v !== undefined && v !== '';
 const num = (v: string | null | undefined) => (present(v) ? Number(v) : NaN);
 
 /** Disc radius around −1 the targets forbid (0 when they set none). */
@@ -116,14 +131,19 @@ export function alphaOfDiskGainDb(db: number): number {
 	return (2 * (g - 1)) / (g + 1);
 }
 
-function fitWindow(responses: readonly CaseResponse[], limit: number, extra: number): { cx: number; cy: number; half: number } {
+function fitWindow(
+	responses: readonly CaseResponse[],
+	limit: number,
+	extra: number
+): { cx: number; cy: number; half: number } {
 	let x0 = -1 - extra;
 	let x1 = Math.max(1, -1 + extra);
 	let y0 = -Math.max(1, extra);
 	let y1 = Math.max(1, extra);
 	for (const r of responses)
 		for (const p of r.points) {
-			if (!Number.isFinite(p.re) || !Number.isFinite(p.im) || Math.hypot(p.re, p.im) > limit) continue;
+			if (!Number.isFinite(p.re) || !Number.isFinite(p.im) || Math.hypot(p.re, p.im) > limit)
+				continue;
 			x0 = Math.min(x0, p.re);
 			x1 = Math.max(x1, p.re);
 			// the mirror branch makes the picture symmetric in Im
@@ -150,7 +170,7 @@ export function nyquistGeometry(
 	const mmRadius = forbiddenRadius(targets);
 	const caseMm = (margins?.cases ?? []).map((c) => c.modulusMargin ?? 0);
 	const extra = Math.max(mmRadius, ...caseMm.filter((m) => m < 3), 0) + 0.1;
-	const fit = fitWindow(responses, options.fitLimit ?? 4, extra);
+	const fit = fitWindow(responses, options.fitLimit ?? 2.5, extra);
 	const cx = options.center?.[0] ?? fit.cx;
 	const cy = options.center?.[1] ?? fit.cy;
 	const half = options.radius ?? fit.half;
@@ -158,7 +178,12 @@ export function nyquistGeometry(
 	const pxPerUnit = Math.min(boxW, boxH) / (2 * half);
 	const reHalf = boxW / pxPerUnit / 2;
 	const imHalf = boxH / pxPerUnit / 2;
-	const frame: Rect = { left: ins.left, top: ins.top, right: ins.left + boxW, bottom: ins.top + boxH };
+	const frame: Rect = {
+		left: ins.left,
+		top: ins.top,
+		right: ins.left + boxW,
+		bottom: ins.top + boxH
+	};
 	const reDomain: [number, number] = [cx - reHalf, cx + reHalf];
 	const imDomain: [number, number] = [cy - imHalf, cy + imHalf];
 	const xs = scaleLinear().domain(reDomain).range([frame.left, frame.right]);
@@ -166,9 +191,25 @@ export function nyquistGeometry(
 	const toPx = (re: number, im: number): Pt => [xs(re), ys(im)];
 	const fromPx = (px: number, py: number): Pt => [xs.invert(px), ys.invert(py)];
 
-	const step = pickStep(2 * Math.max(reHalf, imHalf), [0.1, 0.2, 0.25, 0.5, 1, 2, 2.5, 5, 10, 20, 25, 50, 100], 8);
-	const x: Axis = { domain: reDomain, range: [frame.left, frame.right], toPx: xs, fromPx: (p) => xs.invert(p), ticks: stepTicks(reDomain, step, xs, '') };
-	const y: Axis = { domain: imDomain, range: [frame.bottom, frame.top], toPx: ys, fromPx: (p) => ys.invert(p), ticks: stepTicks(imDomain, step, ys, '') };
+	const step = pickStep(
+		2 * Math.max(reHalf, imHalf),
+		[0.1, 0.2, 0.25, 0.5, 1, 2, 2.5, 5, 10, 20, 25, 50, 100],
+		8
+	);
+	const x: Axis = {
+		domain: reDomain,
+		range: [frame.left, frame.right],
+		toPx: xs,
+		fromPx: (p) => xs.invert(p),
+		ticks: stepTicks(reDomain, step, xs, '')
+	};
+	const y: Axis = {
+		domain: imDomain,
+		range: [frame.bottom, frame.top],
+		toPx: ys,
+		fromPx: (p) => ys.invert(p),
+		ticks: stepTicks(imDomain, step, ys, '')
+	};
 
 	const curves: NyquistCurve[] = responses.map((r, index) => {
 		const pts: Pt[] = r.points.map((p) => toPx(p.re, p.im));
@@ -216,7 +257,17 @@ export function nyquistGeometry(
 				radius,
 				path: polylinesPath(clipPolyline(circle(-1, 0, radius), frame)),
 				nearest,
-				radiusPath: nearest ? polylinesPath(clipPolyline([[mx, my], [nearest.x, nearest.y]], frame)) : '',
+				radiusPath: nearest
+					? polylinesPath(
+							clipPolyline(
+								[
+									[mx, my],
+									[nearest.x, nearest.y]
+								],
+								frame
+							)
+						)
+					: '',
 				worst: worstFrom !== undefined ? worstFrom === cs.name : radius === worstMm,
 				label: `modulus margin ${formatNumber(radius, 3)}`
 			}
@@ -240,13 +291,21 @@ export function nyquistGeometry(
 	};
 }
 
-function forbiddenRegion(targets: Targets | null, toPx: (re: number, im: number) => Pt, frame: Rect): ForbiddenRegion {
+function forbiddenRegion(
+	targets: Targets | null,
+	toPx: (re: number, im: number) => Pt,
+	frame: Rect
+): ForbiddenRegion {
 	const description: string[] = [];
 	const r = forbiddenRadius(targets);
 	let disc: ForbiddenRegion['disc'] = null;
 	if (r > 0) {
 		const label = `|1 + L| below ${formatNumber(r, 3)} (within ${formatNumber(r, 3)} of −1)`;
-		disc = { radius: r, label, path: polygonPath(arcPoints(-1, 0, r, 0, 2 * Math.PI).map(([a, b]) => toPx(a, b))) };
+		disc = {
+			radius: r,
+			label,
+			path: polygonPath(arcPoints(-1, 0, r, 0, 2 * Math.PI).map(([a, b]) => toPx(a, b)))
+		};
 		description.push(`Forbidden: ${label}.`);
 	}
 	let diskMarginDisc: ForbiddenRegion['diskMarginDisc'] = null;
@@ -257,24 +316,54 @@ function forbiddenRegion(targets: Targets | null, toPx: (re: number, im: number)
 		const centre = (-1 - q * q) / (1 - q * q);
 		const radius = (2 * q) / (1 - q * q);
 		const label = `disk margin below α = ${formatNumber(alpha, 3)} (disk gain margin ${formatNumber(dgm, 3)} dB)`;
-		diskMarginDisc = { alpha, centre, radius, label, path: polygonPath(arcPoints(centre, 0, radius, 0, 2 * Math.PI).map(([a, b]) => toPx(a, b))) };
+		diskMarginDisc = {
+			alpha,
+			centre,
+			radius,
+			label,
+			path: polygonPath(arcPoints(centre, 0, radius, 0, 2 * Math.PI).map(([a, b]) => toPx(a, b)))
+		};
 		description.push(`Forbidden: ${label}.`);
 	}
 	const gainSegments: ForbiddenRegion['gainSegments'] = [];
 	const seg = (from: number, to: number, label: string) => {
-		gainSegments.push({ from, to, label, path: polylinesPath(clipPolyline([toPx(from, 0), toPx(to, 0)], frame)) });
+		gainSegments.push({
+			from,
+			to,
+			label,
+			path: polylinesPath(clipPolyline([toPx(from, 0), toPx(to, 0)], frame))
+		});
 		description.push(`Forbidden: crossing the negative real axis ${label}.`);
 	};
 	const up = num(targets?.minUpperGainMarginDb);
-	if (up > 0) seg(-1, -(10 ** (-up / 20)), `between −1 and −${formatNumber(10 ** (-up / 20), 3)} (upper gain margin under ${formatNumber(up, 3)} dB)`);
+	if (up > 0)
+		seg(
+			-1,
+			-(10 ** (-up / 20)),
+			`between −1 and −${formatNumber(10 ** (-up / 20), 3)} (upper gain margin under ${formatNumber(up, 3)} dB)`
+		);
 	const low = num(targets?.minLowerGainMarginDb);
-	if (low > 0) seg(-(10 ** (low / 20)), -1, `between −${formatNumber(10 ** (low / 20), 3)} and −1 (lower gain margin under ${formatNumber(low, 3)} dB)`);
+	if (low > 0)
+		seg(
+			-(10 ** (low / 20)),
+			-1,
+			`between −${formatNumber(10 ** (low / 20), 3)} and −1 (lower gain margin under ${formatNumber(low, 3)} dB)`
+		);
 	let phaseArc: ForbiddenRegion['phaseArc'] = null;
 	const pm = num(targets?.minPhaseMarginDeg);
 	if (pm > 0) {
 		const a = (Math.min(pm, 180) * Math.PI) / 180;
 		const label = `crossing the unit circle within ${formatNumber(pm, 3)}° of −1 (phase margin under ${formatNumber(pm, 3)}°)`;
-		phaseArc = { degrees: pm, label, path: polylinesPath(clipPolyline(arcPoints(0, 0, 1, Math.PI - a, Math.PI + a).map(([p, q]) => toPx(p, q)), frame)) };
+		phaseArc = {
+			degrees: pm,
+			label,
+			path: polylinesPath(
+				clipPolyline(
+					arcPoints(0, 0, 1, Math.PI - a, Math.PI + a).map(([p, q]) => toPx(p, q)),
+					frame
+				)
+			)
+		};
 		description.push(`Forbidden: ${label}.`);
 	}
 	return { disc, diskMarginDisc, gainSegments, phaseArc, description };
@@ -283,12 +372,21 @@ function forbiddenRegion(targets: Targets | null, toPx: (re: number, im: number)
 /** Arrowheads at a few places along the visible curve, pointing along it. */
 function arrows(pts: Pt[], frame: Rect, count = 3): string {
 	const inside = pts.filter(
-		(p) => Number.isFinite(p[0]) && Number.isFinite(p[1]) && p[0] > frame.left && p[0] < frame.right && p[1] > frame.top && p[1] < frame.bottom
+		(p) =>
+			Number.isFinite(p[0]) &&
+			Number.isFinite(p[1]) &&
+			p[0] > frame.left &&
+			p[0] < frame.right &&
+			p[1] > frame.top &&
+			p[1] < frame.bottom
 	);
 	if (inside.length < 8) return '';
 	// arc length along the visible points, arrows at equal spacing
 	const cum = [0];
-	for (let i = 1; i < inside.length; i++) cum.push(cum[i - 1] + Math.hypot(inside[i][0] - inside[i - 1][0], inside[i][1] - inside[i - 1][1]));
+	for (let i = 1; i < inside.length; i++)
+		cum.push(
+			cum[i - 1] + Math.hypot(inside[i][0] - inside[i - 1][0], inside[i][1] - inside[i - 1][1])
+		);
 	const total = cum[cum.length - 1];
 	if (total < 40) return '';
 	let out = '';

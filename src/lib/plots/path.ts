@@ -111,7 +111,14 @@ export function clipPolyline(points: Pt[], r: Rect): Pt[][] {
 }
 
 /** Points of a circular arc (angles in radians, counter-clockwise in the maths sense). */
-export function arcPoints(cx: number, cy: number, radius: number, from: number, to: number, steps = 96): Pt[] {
+export function arcPoints(
+	cx: number,
+	cy: number,
+	radius: number,
+	from: number,
+	to: number,
+	steps = 96
+): Pt[] {
 	const n = Math.max(2, Math.ceil((steps * Math.abs(to - from)) / (2 * Math.PI)));
 	const out: Pt[] = [];
 	for (let i = 0; i <= n; i++) {

@@ -15,14 +15,26 @@ const trim = (s: string) => (s.includes('.') ? s.replace(/\.?0+$/, '') : s);
 export function formatHz(hz: number, digits = 3): string {
 	if (!Number.isFinite(hz)) return '—';
 	const abs = Math.abs(hz);
-	const [div, unit] = abs >= 1e6 ? [1e6, 'MHz'] : abs >= 1e3 ? [1e3, 'kHz'] : abs >= 1 || abs === 0 ? [1, 'Hz'] : abs >= 1e-3 ? [1e-3, 'mHz'] : [1e-6, 'µHz'];
+	const [div, unit] =
+		abs >= 1e6
+			? [1e6, 'MHz']
+			: abs >= 1e3
+				? [1e3, 'kHz']
+				: abs >= 1 || abs === 0
+					? [1, 'Hz']
+					: abs >= 1e-3
+						? [1e-3, 'mHz']
+						: [1e-6, 'µHz'];
 	return `${trim((hz / div).toPrecision(digits))} ${unit}`;
 }
 
 /** A number with a fixed count of significant digits and a true minus sign. */
 export function formatNumber(v: number, digits = 3): string {
 	if (!Number.isFinite(v)) return v > 0 ? '∞' : v < 0 ? '−∞' : '—';
-	const s = Math.abs(v) >= 1e5 || (Math.abs(v) < 1e-3 && v !== 0) ? v.toExponential(digits - 1) : trim(v.toPrecision(digits));
+	const s =
+		Math.abs(v) >= 1e5 || (Math.abs(v) < 1e-3 && v !== 0)
+			? v.toExponential(digits - 1)
+			: trim(v.toPrecision(digits));
 	return s.replace(/^-/, '−');
 }
 
@@ -34,7 +46,11 @@ export function formatSigned(v: number, unit: string, digits = 2): string {
 }
 
 /** Log-axis ticks: every decade labelled (or every other one when crowded), 2…9 as minor ticks. */
-export function logTicks(domain: [number, number], toPx: (v: number) => number, maxLabels = 8): Tick[] {
+export function logTicks(
+	domain: [number, number],
+	toPx: (v: number) => number,
+	maxLabels = 8
+): Tick[] {
 	const [lo, hi] = domain;
 	const d0 = Math.floor(Math.log10(lo));
 	const d1 = Math.ceil(Math.log10(hi));
@@ -46,7 +62,12 @@ export function logTicks(domain: [number, number], toPx: (v: number) => number, 
 			const v = m * 10 ** d;
 			if (v < lo * (1 - 1e-9) || v > hi * (1 + 1e-9)) continue;
 			const major = m === 1;
-			out.push({ value: v, position: toPx(v), major, label: major && (d - d0) % every === 0 ? formatHz(v) : '' });
+			out.push({
+				value: v,
+				position: toPx(v),
+				major,
+				label: major && (d - d0) % every === 0 ? formatHz(v) : ''
+			});
 		}
 	}
 	return out;
@@ -60,14 +81,24 @@ export function pickStep(span: number, steps: number[], maxTicks: number): numbe
 }
 
 /** Ticks at multiples of `step` inside the domain. */
-export function stepTicks(domain: [number, number], step: number, toPx: (v: number) => number, unit: string): Tick[] {
+export function stepTicks(
+	domain: [number, number],
+	step: number,
+	toPx: (v: number) => number,
+	unit: string
+): Tick[] {
 	const out: Tick[] = [];
 	const first = Math.ceil(domain[0] / step - 1e-9);
 	const last = Math.floor(domain[1] / step + 1e-9);
 	for (let i = first; i <= last; i++) {
 		const v = i * step;
 		const text = formatNumber(v === 0 ? 0 : v, 4);
-		out.push({ value: v, position: toPx(v), major: true, label: unit === '°' ? `${text}°` : unit ? `${text} ${unit}` : text });
+		out.push({
+			value: v,
+			position: toPx(v),
+			major: true,
+			label: unit === '°' ? `${text}°` : unit ? `${text} ${unit}` : text
+		});
 	}
 	return out;
 }

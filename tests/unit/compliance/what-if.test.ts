@@ -1,11 +1,20 @@
 import { describe, expect, it } from 'vitest';
-import { describeRange, meetsRange, whatIfAt, type WhatIfInput } from '../../../src/lib/compliance/what-if';
+import {
+	describeRange,
+	meetsRange,
+	whatIfAt,
+	type WhatIfInput
+} from '../../../src/lib/compliance/what-if';
 import type { Targets } from '../../../src/lib/compliance/criteria';
 import { model, poly } from '../margins/helpers';
 
 const now = new Date('2026-12-01T00:00:00Z');
 const dB = (x: number) => 20 * Math.log10(x);
-const input = (m: ReturnType<typeof model>, targets: Targets, extra: Partial<WhatIfInput> = {}): WhatIfInput => ({
+const input = (
+	m: ReturnType<typeof model>,
+	targets: Targets,
+	extra: Partial<WhatIfInput> = {}
+): WhatIfInput => ({
 	model: m,
 	targets,
 	now,
@@ -17,7 +26,10 @@ describe('whatIfAt', () => {
 		const m = model({ blocks: [poly([10], [1, 0])] });
 		const p = whatIfAt(input(m, { minPhaseMarginDeg: '45' }), 6);
 		expect(p.gainScale).toBeCloseTo(10 ** (6 / 20), 12);
-		expect(p.margins.cases[0].gainCrossovers[0].hz).toBeCloseTo((10 * p.gainScale) / (2 * Math.PI), 9);
+		expect(p.margins.cases[0].gainCrossovers[0].hz).toBeCloseTo(
+			(10 * p.gainScale) / (2 * Math.PI),
+			9
+		);
 		expect(p.judgement.verdict).toBe('compliant');
 		expect(p.meets).toBe(true);
 	});
@@ -33,7 +45,9 @@ describe('meetsRange against closed forms', () => {
 		// |kK/(jω)| = 1 at ω = kK, so the crossover is kK/(2π) Hz; PM stays 90°.
 		const K = 10;
 		const m = model({ blocks: [poly([K], [1, 0])] });
-		const r = meetsRange(input(m, { crossoverMinHz: '1', crossoverMaxHz: '3', minPhaseMarginDeg: '45' }));
+		const r = meetsRange(
+			input(m, { crossoverMinHz: '1', crossoverMaxHz: '3', minPhaseMarginDeg: '45' })
+		);
 		expect(r.nominalMeets).toBe(true);
 		expect(r.intervals).toHaveLength(1);
 		expect(r.interval!.lowDb).toBeCloseTo(dB((2 * Math.PI * 1) / K), 2);
@@ -69,10 +83,15 @@ describe('meetsRange against closed forms', () => {
 		};
 		const r = meetsRange(input(m, { minPhaseMarginDeg: '45' }, { deviations: [deviation] }));
 		expect(r.interval!.highDb).toBeCloseTo(dB(kmax), 2);
-		expect(whatIfAt(input(m, { minPhaseMarginDeg: '45' }, { deviations: [deviation] }), 6).judgement.verdict).toBe('covered');
+		expect(
+			whatIfAt(input(m, { minPhaseMarginDeg: '45' }, { deviations: [deviation] }), 6).judgement
+				.verdict
+		).toBe('covered');
 		// an expired deviation does not count
 		const expired = { ...deviation, expiresAt: new Date('2026-06-01T00:00:00Z') };
-		expect(meetsRange(input(m, { minPhaseMarginDeg: '45' }, { deviations: [expired] })).interval!.highDb).toBeCloseTo(dB(Math.SQRT2), 2);
+		expect(
+			meetsRange(input(m, { minPhaseMarginDeg: '45' }, { deviations: [expired] })).interval!.highDb
+		).toBeCloseTo(dB(Math.SQRT2), 2);
 	});
 
 	it('K/(s+1)³ with GM ≥ 6 dB: GM = 20·log10(8/(kK)), so it meets up to 20·log10(8/K) − 6 dB; short at nominal when K = 10', () => {
@@ -91,7 +110,9 @@ describe('meetsRange against closed forms', () => {
 		expect(short.nominalMeets).toBe(false);
 		expect(short.interval!.lowDb).toBeNull();
 		expect(short.interval!.highDb).toBeCloseTo(dB(0.8) - 6, 2);
-		expect(describeRange(short)).toBe('Does not meet its targets at nominal gain; it would from below −40.0 dB to −7.9 dB.');
+		expect(describeRange(short)).toBe(
+			'Does not meet its targets at nominal gain; it would from below −40.0 dB to −7.9 dB.'
+		);
 	});
 
 	it('no gain at all: two cases whose crossovers no single gain puts in the band', () => {
@@ -104,7 +125,9 @@ describe('meetsRange against closed forms', () => {
 		expect(r.nominalMeets).toBe(false);
 		expect(r.interval).toBeNull();
 		expect(r.intervals).toEqual([]);
-		expect(describeRange(r)).toBe('Does not meet its targets at any gain from −40.0 dB to +40.0 dB.');
+		expect(describeRange(r)).toBe(
+			'Does not meet its targets at any gain from −40.0 dB to +40.0 dB.'
+		);
 	});
 
 	it('refuses a search without a span', () => {

@@ -4,6 +4,7 @@ import {
 	bodeGeometry,
 	clipPolyline,
 	criticalLineNear,
+	labelledLines,
 	logTicks,
 	nyquistGeometry,
 	alphaOfDiskGainDb,
@@ -16,27 +17,65 @@ import { model, poly } from '../margins/helpers';
 function coords(d: string): Pt[] {
 	expect(d).toMatch(/^([MLZ][-\d.,e]*)*$/);
 	const out: Pt[] = [];
-	for (const m of d.matchAll(/[ML](-?[\d.e-]+),(-?[\d.e-]+)/g)) out.push([Number(m[1]), Number(m[2])]);
+	for (const m of d.matchAll(/[ML](-?[\d.e-]+),(-?[\d.e-]+)/g))
+		out.push([Number(m[1]), Number(m[2])]);
 	return out;
 }
 
-const inside = (p: Pt, r: { left: number; right: number; top: number; bottom: number }, tol = 0.01) =>
-	p[0] >= r.left - tol && p[0] <= r.right + tol && p[1] >= r.top - tol && p[1] <= r.bottom + tol;
+const inside = (
+	p: Pt,
+	r: { left: number; right: number; top: number; bottom: number },
+	tol = 0.01
+) => p[0] >= r.left - tol && p[0] <= r.right + tol && p[1] >= r.top - tol && p[1] <= r.bottom + tol;
 
 describe('clipPolyline', () => {
 	const rect = { left: 0, top: 0, right: 10, bottom: 10 };
 	it('cuts a line at the edges where it leaves and re-enters', () => {
-		const pieces = clipPolyline([[-5, 5], [5, 5], [15, 5], [15, 8], [5, 8]], rect);
+		const pieces = clipPolyline(
+			[
+				[-5, 5],
+				[5, 5],
+				[15, 5],
+				[15, 8],
+				[5, 8]
+			],
+			rect
+		);
 		expect(pieces).toEqual([
-			[[0, 5], [5, 5], [10, 5]],
-			[[10, 8], [5, 8]]
+			[
+				[0, 5],
+				[5, 5],
+				[10, 5]
+			],
+			[
+				[10, 8],
+				[5, 8]
+			]
 		]);
 	});
 	it('breaks at non-finite points and drops what misses the rectangle', () => {
-		const pieces = clipPolyline([[1, 1], [2, 2], [NaN, 3], [4, 4], [5, 5], [20, 20], [30, 30]], rect);
+		const pieces = clipPolyline(
+			[
+				[1, 1],
+				[2, 2],
+				[NaN, 3],
+				[4, 4],
+				[5, 5],
+				[20, 20],
+				[30, 30]
+			],
+			rect
+		);
 		expect(pieces).toEqual([
-			[[1, 1], [2, 2]],
-			[[4, 4], [5, 5], [10, 10]]
+			[
+				[1, 1],
+				[2, 2]
+			],
+			[
+				[4, 4],
+				[5, 5],
+				[10, 10]
+			]
 		]);
 	});
 });
@@ -58,7 +97,10 @@ describe('bodeGeometry', () => {
 	const thirdOrder = model({ blocks: [poly([4], [1, 3, 3, 1])] });
 
 	it('marks the gain crossover of k/s on 0 dB and draws PM from −90° down to −180°', () => {
-		const g = bodeGeometry(sampleResponse(integrator), computeMargins(integrator), { width: 640, height: 420 });
+		const g = bodeGeometry(sampleResponse(integrator), computeMargins(integrator), {
+			width: 640,
+			height: 420
+		});
 		const hz = 10 / (2 * Math.PI);
 		expect(g.gainCrossovers).toHaveLength(1);
 		const m = g.gainCrossovers[0];
@@ -122,8 +164,34 @@ describe('bodeGeometry', () => {
 			const ph = valueAt(sampleResponse(m)[0].points, p.hz, 'phaseDeg');
 			expect(ph).toBeCloseTo(p.criticalDeg, 4);
 		}
+		// only the crossover the upper gain margin comes from is primary (labelled in a crowd)
+		expect(g.gainMarginLines.filter((l) => l.primary).map((l) => l.hz)).toEqual([
+			r.cases[0].upperGainMarginHz
+		]);
+		// with the phase axis cut short, crossovers on lines off the axis say they are outside
+		const cut = bodeGeometry(sampleResponse(m), r, {
+			width: 800,
+			height: 500,
+			phaseDomainDeg: [-360, 0]
+		});
+		expect(cut.phaseCrossovers.map((p) => p.inside)).toEqual(
+			g.phaseCrossovers.map((p) => p.criticalDeg === -180)
+		);
 		expect(criticalLineNear(-530)).toBe(-540);
 		expect(criticalLineNear(170)).toBe(180);
+	});
+
+	it('labels only dimension lines whose labels do not collide, reported margins first', () => {
+		const m = model({
+			blocks: [poly([4], [1, 3, 3, 1])],
+			cases: [{ name: 'a' }, { name: 'b', gain: 1.01 }]
+		});
+		const g = bodeGeometry(sampleResponse(m), computeMargins(m), { width: 600, height: 400 });
+		// the two cases' gain margins sit a pixel apart: one label, not two on top of each other
+		expect(g.gainMarginLines).toHaveLength(2);
+		expect(labelledLines(g.gainMarginLines).map((l) => l.caseName)).toEqual(['b']); // the smaller margin
+		const apart = g.gainMarginLines.map((l, i) => ({ ...l, labelY: l.labelY + i * 40 }));
+		expect(labelledLines(apart)).toHaveLength(2);
 	});
 
 	it('draws one curve per case, with markers naming their case', () => {
@@ -147,7 +215,11 @@ describe('nyquistGeometry', () => {
 		minLowerGainMarginDb: '3',
 		minPhaseMarginDeg: '45'
 	};
-	const g = nyquistGeometry(sampleResponse(m), computeMargins(m), { width: 500, height: 400, targets });
+	const g = nyquistGeometry(sampleResponse(m), computeMargins(m), {
+		width: 500,
+		height: 400,
+		targets
+	});
 	const unit = g.x.toPx(1) - g.x.toPx(0);
 
 	it('uses equal units on both axes and puts −1 where it belongs', () => {
@@ -155,7 +227,8 @@ describe('nyquistGeometry', () => {
 		expect(g.criticalPoint.x).toBeCloseTo(g.x.toPx(-1), 9);
 		expect(g.criticalPoint.y).toBeCloseTo(g.y.toPx(0), 9);
 		const pts = coords(g.unitCircle);
-		for (const [x, y] of pts) expect(Math.hypot(x - g.x.toPx(0), y - g.y.toPx(0))).toBeCloseTo(unit, 0);
+		for (const [x, y] of pts)
+			expect(Math.hypot(x - g.x.toPx(0), y - g.y.toPx(0))).toBeCloseTo(unit, 0);
 	});
 
 	it('draws the modulus-margin circle around −1 touching the curve', () => {
@@ -164,9 +237,15 @@ describe('nyquistGeometry', () => {
 		expect(c.radius).toBe(r.modulusMargin);
 		expect(c.worst).toBe(true);
 		const pts = coords(c.path);
-		for (const [x, y] of pts) expect(Math.hypot(x - g.criticalPoint.x, y - g.criticalPoint.y)).toBeCloseTo(c.radius * unit, 0);
+		for (const [x, y] of pts)
+			expect(Math.hypot(x - g.criticalPoint.x, y - g.criticalPoint.y)).toBeCloseTo(
+				c.radius * unit,
+				0
+			);
 		expect(c.nearest).not.toBeNull();
-		expect(Math.hypot(c.nearest!.x - g.criticalPoint.x, c.nearest!.y - g.criticalPoint.y)).toBeCloseTo(c.radius * unit, 0);
+		expect(
+			Math.hypot(c.nearest!.x - g.criticalPoint.x, c.nearest!.y - g.criticalPoint.y)
+		).toBeCloseTo(c.radius * unit, 0);
 	});
 
 	it('forbids the disc, the gain-margin segments and the phase-margin arc the targets set', () => {
@@ -188,7 +267,11 @@ describe('nyquistGeometry', () => {
 	it('the disk-margin disc is the Apollonius circle |1+L| = (α/2)|1−L|', () => {
 		const alpha = alphaOfDiskGainDb(6);
 		expect(20 * Math.log10((2 + alpha) / (2 - alpha))).toBeCloseTo(6, 12);
-		const d = nyquistGeometry([], null, { width: 300, height: 300, targets: { minDiskGainMarginDb: '6' } }).forbidden.diskMarginDisc!;
+		const d = nyquistGeometry([], null, {
+			width: 300,
+			height: 300,
+			targets: { minDiskGainMarginDb: '6' }
+		}).forbidden.diskMarginDisc!;
 		for (const re of [d.centre - d.radius, d.centre + d.radius]) {
 			expect(Math.abs(1 + re)).toBeCloseTo((alpha / 2) * Math.abs(1 - re), 12);
 		}
@@ -196,7 +279,10 @@ describe('nyquistGeometry', () => {
 
 	it('clips an integrator that runs to infinity to the frame, and mirrors negative frequencies', () => {
 		const int = model({ blocks: [poly([10], [1, 1, 0])] });
-		const n = nyquistGeometry(sampleResponse(int), computeMargins(int), { width: 300, height: 300 });
+		const n = nyquistGeometry(sampleResponse(int), computeMargins(int), {
+			width: 300,
+			height: 300
+		});
 		const pts = coords(n.curves[0].path);
 		expect(pts.length).toBeGreaterThan(20);
 		expect(pts.every((p) => inside(p, n.frame))).toBe(true);
@@ -205,6 +291,9 @@ describe('nyquistGeometry', () => {
 		expect(mirror.length).toBe(pts.length);
 		mirror.forEach((p, i) => expect(p[1] - axisY).toBeCloseTo(axisY - pts[i][1], 1));
 		expect(n.curves[0].arrowsPath).not.toBe('');
-		expect(nyquistGeometry(sampleResponse(int), null, { width: 300, height: 300, mirror: false }).curves[0].mirrorPath).toBe('');
+		expect(
+			nyquistGeometry(sampleResponse(int), null, { width: 300, height: 300, mirror: false })
+				.curves[0].mirrorPath
+		).toBe('');
 	});
 });

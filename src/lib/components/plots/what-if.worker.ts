@@ -13,7 +13,13 @@ import type { LoopModel } from '../../margins/schema';
 export interface RangeRequest {
 	model: LoopModel;
 	targets: Targets;
-	deviations: { id: string; relaxed: Targets; startsAt: string; expiresAt: string; revokedAt: string | null }[];
+	deviations: {
+		id: string;
+		relaxed: Targets;
+		startsAt: string;
+		expiresAt: string;
+		revokedAt: string | null;
+	}[];
 	now: string;
 	spanDb: number;
 }
@@ -28,7 +34,12 @@ self.onmessage = (e: MessageEvent<RangeRequest>) => {
 				model,
 				targets,
 				now: new Date(now),
-				deviations: deviations.map((d) => ({ ...d, startsAt: new Date(d.startsAt), expiresAt: new Date(d.expiresAt), revokedAt: d.revokedAt ? new Date(d.revokedAt) : null }))
+				deviations: deviations.map((d) => ({
+					...d,
+					startsAt: new Date(d.startsAt),
+					expiresAt: new Date(d.expiresAt),
+					revokedAt: d.revokedAt ? new Date(d.revokedAt) : null
+				}))
 			},
 			{ spanDb }
 		);

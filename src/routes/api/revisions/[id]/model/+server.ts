@@ -16,7 +16,9 @@ export const GET = (async (event) =>
 		const object = await revisionObject(await forkEm(), event.params.id);
 		const { body, size } = await getObjectStream(object.key);
 		const headers: Record<string, string> = {
-			'content-type': /\.csv$/i.test(object.fileName) ? 'text/csv; charset=utf-8' : 'application/json; charset=utf-8',
+			'content-type': /\.csv$/i.test(object.fileName)
+				? 'text/csv; charset=utf-8'
+				: 'application/json; charset=utf-8',
 			'content-disposition': `inline; filename="${object.fileName.replace(/[^\w.-]/g, '_')}"`,
 			// a revision's file never changes once stored
 			'cache-control': 'private, max-age=3600'
