@@ -5,20 +5,13 @@
  * target), so every loop gets its own page with Bode and Nyquist plots: the worst case for the
  * renderer. Prints figures next to the 10 s target; it never fails on timing.
  */
-import { chmodSync, mkdtempSync, rmSync } from 'node:fs';
-import { cpus, loadavg, tmpdir } from 'node:os';
-import { join, resolve } from 'node:path';
+import { cpus, loadavg } from 'node:os';
+import { resolve } from 'node:path';
 import { spawn, type ChildProcess } from 'node:child_process';
-import { startCluster } from './lib/postgres';
-import { startS3Fake, s3Env } from './lib/s3';
-import { freePort } from './lib/ports';
-import { Supervisor } from './lib/processes';
-import { randomSecret } from './lib/secrets';
+import { s3Env } from './lib/s3';
+import { runBench, type BenchServices } from './lib/bench';
 
 const root = resolve(import.meta.dirname, '..');
-const temp = mkdtempSync(join(tmpdir(), 'headroom-bench-reports-'));
-chmodSync(temp, 0o755);
-const supervisor = new Supervisor();
 const LOOPS = Number(process.env.BENCH_REPORT_LOOPS ?? 200);
 const RUNS = Number(process.env.BENCH_REPORT_RUNS ?? 3);
 
@@ -46,15 +39,8 @@ function startWorker(env: NodeJS.ProcessEnv): Promise<ChildProcess> {
 const stopWorker = (c: ChildProcess) => new Promise((res) => (c.once('exit', res), c.kill('SIGTERM')));
 const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
 
-async function main() {
-	const pg = await startCluster({ dataDir: join(temp, 'pg'), port: await freePort(), logFile: join(temp, 'pg.log'), superuserPassword: randomSecret(), throwaway: true });
-	supervisor.defer('postgres', () => pg.stop(), () => pg.stopSync());
-	await pg.createDatabase('bench');
-	const s3Port = await freePort();
-	await startS3Fake(supervisor, { root, port: s3Port, dir: join(temp, 's3'), bucket: 'headroom' });
-	const url = new URL(pg.adminUrl);
-	url.pathname = '/bench';
-	const env: NodeJS.ProcessEnv = { ...process.env, DATABASE_URL: url.toString(), ...s3Env(s3Port, 'headroom'), NODE_ENV: 'production' };
+async function main({ pg, s3Port, databaseUrl }: BenchServices) {
+	const env: NodeJS.ProcessEnv = { ...process.env, DATABASE_URL: databaseUrl, ...s3Env(s3Port, 'headroom'), NODE_ENV: 'production' };
 	Object.assign(process.env, env);
 
 	// Imported after the environment is set: the server modules read it on first use.
@@ -128,12 +114,4 @@ async function main() {
 	await orm.close(true);
 }
 
-main()
-	.catch((e) => {
-		console.error(e);
-		process.exitCode = 1;
-	})
-	.finally(async () => {
-		await supervisor.stopAll();
-		rmSync(temp, { recursive: true, force: true });
-	});
+runBench('bench-reports', root, main);
