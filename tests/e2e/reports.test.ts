@@ -29,23 +29,40 @@ async function exportAndDownload(page: Page, format: 'PDF' | 'CSV') {
 	const row = rows.first();
 	expect(await row.getAttribute('data-format')).toBe(format.toLowerCase());
 	expect(await row.getByTestId('report-state').innerText()).toMatch(/Queued|Rendering|Ready/);
-	await page.locator(`[data-testid="report-row"][data-state="ready"][data-format="${format.toLowerCase()}"]`).first().waitFor({ timeout: 90_000 });
+	await page
+		.locator(
+			`[data-testid="report-row"][data-state="ready"][data-format="${format.toLowerCase()}"]`
+		)
+		.first()
+		.waitFor({ timeout: 90_000 });
 	const download = page.waitForEvent('download');
-	await rows.first().getByRole('link', { name: /Download/ }).click();
+	await rows
+		.first()
+		.getByRole('link', { name: /Download/ })
+		.click();
 	const file = await download;
-	expect(file.suggestedFilename()).toMatch(new RegExp(`^headroom-compliance-\\d{8}-\\d{4}-[0-9a-f]{8}\\.${format.toLowerCase()}$`));
+	expect(file.suggestedFilename()).toMatch(
+		new RegExp(`^headroom-compliance-\\d{8}-\\d{4}-[0-9a-f]{8}\\.${format.toLowerCase()}$`)
+	);
 	return readFile((await file.path())!);
 }
 
 describe('compliance reports in the browser', () => {
 	it('exports a PDF and a CSV of the dashboard filter from the reports page, live, and downloads both', async () => {
-		const context = await browser.newContext({ viewport: { width: 1280, height: 900 }, acceptDownloads: true });
+		const context = await browser.newContext({
+			viewport: { width: 1280, height: 900 },
+			acceptDownloads: true
+		});
 		const page = await context.newPage();
 		// A viewer: audits need reports, so every role may export them.
 		await signIn(page, 'viewer@headroom.test');
-		await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Reports' }).click();
+		await page
+			.getByRole('navigation', { name: 'Main' })
+			.getByRole('link', { name: 'Reports' })
+			.click();
 		await page.waitForURL(baseUrl() + '/reports');
-		if (await page.getByTestId('reports-empty').count()) expect(await page.getByTestId('reports-empty').innerText()).toMatch(/No reports yet/);
+		if (await page.getByTestId('reports-empty').count())
+			expect(await page.getByTestId('reports-empty').innerText()).toMatch(/No reports yet/);
 
 		await page.goto(baseUrl() + '/reports?verdict=noncompliant&sort=key');
 		expect(await page.getByTestId('report-scope').innerText()).toBe('Non-compliant loops');
@@ -71,7 +88,10 @@ describe('compliance reports in the browser', () => {
 	});
 
 	it('fits a phone screen', async () => {
-		const context = await browser.newContext({ viewport: { width: 390, height: 844 }, isMobile: true });
+		const context = await browser.newContext({
+			viewport: { width: 390, height: 844 },
+			isMobile: true
+		});
 		const page = await context.newPage();
 		await signIn(page, 'engineer@headroom.test');
 		await page.goto(baseUrl() + '/reports?product=tarn-s2');

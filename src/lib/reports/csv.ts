@@ -78,7 +78,9 @@ function criterionCells(c: CriterionResult): Partial<Record<Column, Cell>> {
 		unit: CRITERION_UNITS[c.criterion] === '°' ? 'deg' : CRITERION_UNITS[c.criterion],
 		shortfall: c.shortfall,
 		case: c.fromCase ?? null,
-		deviation: c.coveredBy ? `${c.coveredBy}${c.relaxedTo ? ` (relaxed to ${c.relaxedTo})` : ''}` : null,
+		deviation: c.coveredBy
+			? `${c.coveredBy}${c.relaxedTo ? ` (relaxed to ${c.relaxedTo})` : ''}`
+			: null,
 		note: c.note ?? null
 	};
 }

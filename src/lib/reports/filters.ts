@@ -11,7 +11,16 @@ import { VERDICT_LABELS } from '../compliance/labels';
 export const REPORT_FORMATS = ['pdf', 'csv'] as const;
 export type ReportFormat = (typeof REPORT_FORMATS)[number];
 
-export const REPORT_FILTER_NAMES = ['verdict', 'product', 'class', 'owner', 'failing', 'tag', 'q', 'changedSince'] as const;
+export const REPORT_FILTER_NAMES = [
+	'verdict',
+	'product',
+	'class',
+	'owner',
+	'failing',
+	'tag',
+	'q',
+	'changedSince'
+] as const;
 export type ReportFilterName = (typeof REPORT_FILTER_NAMES)[number];
 
 export interface ReportFilters {
@@ -38,20 +47,32 @@ const text = (max: number) =>
 		.optional();
 
 // As GET /api/loops reads it: a date (midnight UTC) or a date-time, seconds and zone optional.
-const ISO = /^\d{4}-\d{2}-\d{2}(?:[T ]\d{2}:\d{2}(?::\d{2}(?:\.\d{1,9})?)?(?:Z|[+-]\d{2}:?\d{2})?)?$/;
+const ISO =
+	/^\d{4}-\d{2}-\d{2}(?:[T ]\d{2}:\d{2}(?::\d{2}(?:\.\d{1,9})?)?(?:Z|[+-]\d{2}:?\d{2})?)?$/;
 
 const changedSince = z
 	.string()
 	.trim()
-	.refine((v) => v === '' || (ISO.test(v) && !Number.isNaN(Date.parse(/^\d{4}-\d{2}-\d{2}$/.test(v) ? `${v}T00:00:00Z` : v.replace(' ', 'T')))), {
-		message: 'Give a date (2026-11-30) or an ISO 8601 date-time (2026-11-30T08:00:00Z).'
-	})
+	.refine(
+		(v) =>
+			v === '' ||
+			(ISO.test(v) &&
+				!Number.isNaN(
+					Date.parse(/^\d{4}-\d{2}-\d{2}$/.test(v) ? `${v}T00:00:00Z` : v.replace(' ', 'T'))
+				)),
+		{
+			message: 'Give a date (2026-11-30) or an ISO 8601 date-time (2026-11-30T08:00:00Z).'
+		}
+	)
 	.transform((v) => v || undefined)
 	.optional();
 
 const optionalEnum = <T extends readonly [string, ...string[]]>(values: T, what: string) =>
 	z
-		.union([z.literal(''), z.enum(values, { error: `${what} must be one of ${values.join(', ')}.` })])
+		.union([
+			z.literal(''),
+			z.enum(values, { error: `${what} must be one of ${values.join(', ')}.` })
+		])
 		.transform((v) => (v === '' ? undefined : (v as T[number])))
 		.optional();
 

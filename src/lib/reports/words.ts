@@ -2,21 +2,30 @@
  * How report numbers and criteria read, shared by the PDF and the reports page. Pure. Only
  * characters the embedded Latin subset of IBM Plex has (no ≥ or ∞: "min", "max", "no limit").
  */
-import { CRITERION_LABELS, CRITERION_UNITS, TARGET_FIELDS, CRITERIA, type Targets } from '../compliance/criteria';
+import {
+	CRITERION_LABELS,
+	CRITERION_UNITS,
+	TARGET_FIELDS,
+	CRITERIA,
+	type Targets
+} from '../compliance/criteria';
 import type { CriterionResult } from '../compliance/judge';
 
 /** A figure with four significant digits, minus as U+2212, no exponent for everyday sizes. */
 export function figure(n: number | null | undefined): string {
 	if (n === null || n === undefined || !Number.isFinite(n)) return '—';
 	const abs = Math.abs(n);
-	const text = abs !== 0 && (abs < 1e-3 || abs >= 1e6) ? n.toExponential(3) : String(Number(n.toPrecision(4)));
+	const text =
+		abs !== 0 && (abs < 1e-3 || abs >= 1e6) ? n.toExponential(3) : String(Number(n.toPrecision(4)));
 	return text.replace(/^-/, '−');
 }
 
 const unitAfter = (u: string) => (u === '°' ? '°' : u ? ` ${u}` : '');
 
 /** "min 45°", "max 2", "20–300 Hz", "from 20 Hz". */
-export function requiredText(c: Pick<CriterionResult, 'criterion' | 'comparison' | 'required'>): string {
+export function requiredText(
+	c: Pick<CriterionResult, 'criterion' | 'comparison' | 'required'>
+): string {
 	const unit = unitAfter(CRITERION_UNITS[c.criterion]);
 	if (c.comparison === 'within') {
 		const [lo, hi] = c.required.split('–');

@@ -3,7 +3,12 @@ import { requireUser } from '$lib/server/auth/guard';
 import { forkEm } from '$lib/server/db/orm';
 import { domainFailure } from '$lib/server/http/action';
 import { listReports, requestReport } from '$lib/server/reports/exports';
-import { filtersFromQuery, filtersToQuery, REPORT_FILTER_NAMES, scopeInWords } from '$lib/reports/filters';
+import {
+	filtersFromQuery,
+	filtersToQuery,
+	REPORT_FILTER_NAMES,
+	scopeInWords
+} from '$lib/reports/filters';
 import type { Actions, PageServerLoad } from './$types';
 
 // The dashboard links here with its own filter query (/reports?verdict=noncompliant&…): the
@@ -28,10 +33,16 @@ export const actions = {
 			REPORT_FILTER_NAMES.map((n) => [n, String(form.get(n) ?? '')]).filter(([, v]) => v !== '')
 		);
 		try {
-			await requestReport(await forkEm(), user, { format: String(form.get('format') ?? ''), filters });
+			await requestReport(await forkEm(), user, {
+				format: String(form.get('format') ?? ''),
+				filters
+			});
 		} catch (e) {
 			return domainFailure(e);
 		}
-		redirect(303, `/reports?${filtersToQuery(filtersFromQuery(new URLSearchParams(filters))).toString()}`);
+		redirect(
+			303,
+			`/reports?${filtersToQuery(filtersFromQuery(new URLSearchParams(filters))).toString()}`
+		);
 	}
 } satisfies Actions;

@@ -13,10 +13,32 @@ const loop = (over: Partial<ReportLoop> = {}): ReportLoop => ({
 	verdict: 'noncompliant',
 	judgedAt: '2026-12-01T10:00:00.000Z',
 	requirement: { id: 'r1', version: 3, targets: { minPhaseMarginDeg: '45' } },
-	revision: { id: 'v1', number: 2, sha256: 'ab'.repeat(32), objectKey: 'models/x/y', fileName: 'm.json' },
+	revision: {
+		id: 'v1',
+		number: 2,
+		sha256: 'ab'.repeat(32),
+		objectKey: 'models/x/y',
+		fileName: 'm.json'
+	},
 	criteria: [
-		{ criterion: 'phaseMargin', status: 'fail', required: '45', comparison: 'at least', actual: 35.4254, shortfall: '9.5746', fromCase: 'cold' },
-		{ criterion: 'upperGainMargin', status: 'pass', required: '6', comparison: 'at least', actual: 7.96, shortfall: null, fromCase: 'nominal' }
+		{
+			criterion: 'phaseMargin',
+			status: 'fail',
+			required: '45',
+			comparison: 'at least',
+			actual: 35.4254,
+			shortfall: '9.5746',
+			fromCase: 'cold'
+		},
+		{
+			criterion: 'upperGainMargin',
+			status: 'pass',
+			required: '6',
+			comparison: 'at least',
+			actual: 7.96,
+			shortfall: null,
+			fromCase: 'nominal'
+		}
 	],
 	failing: ['phaseMargin'],
 	activeDeviations: 0,
@@ -55,7 +77,18 @@ function parse(text: string): string[][] {
 
 describe('report CSV', () => {
 	it('writes one row per loop and criterion under the documented header', () => {
-		const rows = csvRows([loop(), loop({ id: 'b', key: 'ax2-speed', verdict: 'empty', criteria: [], failing: [], revision: null, requirement: null })]);
+		const rows = csvRows([
+			loop(),
+			loop({
+				id: 'b',
+				key: 'ax2-speed',
+				verdict: 'empty',
+				criteria: [],
+				failing: [],
+				revision: null,
+				requirement: null
+			})
+		]);
 		expect(rows[0]).toEqual([...CSV_COLUMNS]);
 		expect(rows).toHaveLength(1 + 2 + 1);
 		const at = (r: number, col: (typeof CSV_COLUMNS)[number]) => rows[r][CSV_COLUMNS.indexOf(col)];

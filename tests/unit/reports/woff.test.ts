@@ -15,7 +15,10 @@ function checksum(bytes: Buffer): number {
 }
 
 describe('WOFF to sfnt for the PDF fonts', () => {
-	for (const name of ['ibm-plex-sans/files/ibm-plex-sans-latin-400-normal.woff', 'ibm-plex-mono/files/ibm-plex-mono-latin-400-normal.woff']) {
+	for (const name of [
+		'ibm-plex-sans/files/ibm-plex-sans-latin-400-normal.woff',
+		'ibm-plex-mono/files/ibm-plex-mono-latin-400-normal.woff'
+	]) {
 		it(`unpacks every table of ${name.split('/').pop()} intact`, () => {
 			const woff = file(name);
 			const sfnt = woffToSfnt(woff);
@@ -40,6 +43,8 @@ describe('WOFF to sfnt for the PDF fonts', () => {
 	}
 
 	it('refuses a file that is not WOFF 1.0', () => {
-		expect(() => woffToSfnt(new Uint8Array([0x77, 0x4f, 0x46, 0x32, 0, 0, 0, 0]))).toThrow(/not a WOFF 1.0 font/);
+		expect(() => woffToSfnt(new Uint8Array([0x77, 0x4f, 0x46, 0x32, 0, 0, 0, 0]))).toThrow(
+			/not a WOFF 1.0 font/
+		);
 	});
 });

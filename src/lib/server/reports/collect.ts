@@ -28,10 +28,13 @@ export async function selectLoops(em: EntityManager, filters: ReportFilters): Pr
 
 const snake = (k: string) => k.replace(/[A-Z]/g, (c) => `_${c.toLowerCase()}`);
 /** Threshold columns as exact text (numeric → string), named like the fields of Targets. */
-const targetColumns = (alias: string) => TARGET_KEYS.map((k) => `${alias}${snake(k)}::text as "${k}"`).join(', ');
+const targetColumns = (alias: string) =>
+	TARGET_KEYS.map((k) => `${alias}${snake(k)}::text as "${k}"`).join(', ');
 /** Canonical decimals ("45.000000000" → "45"), unset targets left out. */
 const cleanTargets = (t: Targets): Targets =>
-	Object.fromEntries(TARGET_KEYS.map((k) => [k, normalizeDecimal(t[k])]).filter(([, v]) => v !== null)) as Targets;
+	Object.fromEntries(
+		TARGET_KEYS.map((k) => [k, normalizeDecimal(t[k])]).filter(([, v]) => v !== null)
+	) as Targets;
 
 interface JudgedRow {
 	id: string;
@@ -44,7 +47,10 @@ interface JudgedRow {
 /** Lists go to SQL as JSON text (knex would splice a JS array into the value list). */
 const idsIn = (column: string) => `${column} in (select jsonb_array_elements_text(?::jsonb)::uuid)`;
 
-export async function collectLoops(em: EntityManager, filters: ReportFilters): Promise<ReportLoop[]> {
+export async function collectLoops(
+	em: EntityManager,
+	filters: ReportFilters
+): Promise<ReportLoop[]> {
 	const loops = await selectLoops(em, filters);
 	if (!loops.length) return [];
 	const conn = em.getConnection();
@@ -53,15 +59,27 @@ export async function collectLoops(em: EntityManager, filters: ReportFilters): P
 		[JSON.stringify(loops.map((l) => l.id))]
 	);
 	const byLoop = new Map(judged.map((j) => [j.id, j]));
-	const revisionIds = [...new Set(judged.map((j) => j.judged_revision_id).filter((x): x is string => !!x))];
-	const requirementIds = [...new Set(judged.map((j) => j.judged_requirement_id).filter((x): x is string => !!x))];
+	const revisionIds = [
+		...new Set(judged.map((j) => j.judged_revision_id).filter((x): x is string => !!x))
+	];
+	const requirementIds = [
+		...new Set(judged.map((j) => j.judged_requirement_id).filter((x): x is string => !!x))
+	];
 	const revisions = new Map<string, FrozenRevision>();
 	if (revisionIds.length) {
-		const rows = await conn.execute<{ id: string; number: number; sha256: string | null; object_key: string; file_name: string }[]>(
-			`select id, number, sha256, object_key, file_name from revision where ${idsIn('id')}`,
-			[JSON.stringify(revisionIds)]
-		);
-		for (const r of rows) revisions.set(r.id, { id: r.id, number: r.number, sha256: r.sha256, objectKey: r.object_key, fileName: r.file_name });
+		const rows = await conn.execute<
+			{ id: string; number: number; sha256: string | null; object_key: string; file_name: string }[]
+		>(`select id, number, sha256, object_key, file_name from revision where ${idsIn('id')}`, [
+			JSON.stringify(revisionIds)
+		]);
+		for (const r of rows)
+			revisions.set(r.id, {
+				id: r.id,
+				number: r.number,
+				sha256: r.sha256,
+				objectKey: r.object_key,
+				fileName: r.file_name
+			});
 	}
 	const versions = new Map<string, { version: number; targets: Targets }>();
 	if (requirementIds.length) {
@@ -69,7 +87,8 @@ export async function collectLoops(em: EntityManager, filters: ReportFilters): P
 			`select id, version, ${targetColumns('')} from requirement where ${idsIn('id')}`,
 			[JSON.stringify(requirementIds)]
 		);
-		for (const { id, version, ...targets } of rows) versions.set(id, { version, targets: cleanTargets(targets) });
+		for (const { id, version, ...targets } of rows)
+			versions.set(id, { version, targets: cleanTargets(targets) });
 	}
 	return loops.map((l): ReportLoop => {
 		const j = byLoop.get(l.id);
@@ -85,7 +104,10 @@ export async function collectLoops(em: EntityManager, filters: ReportFilters): P
 			tags: l.tags,
 			verdict: l.verdict,
 			judgedAt: j?.judged_at ? new Date(j.judged_at).toISOString() : null,
-			requirement: requirementId && versions.has(requirementId) ? { id: requirementId, ...versions.get(requirementId)! } : null,
+			requirement:
+				requirementId && versions.has(requirementId)
+					? { id: requirementId, ...versions.get(requirementId)! }
+					: null,
 			revision: j?.judged_revision_id ? (revisions.get(j.judged_revision_id) ?? null) : null,
 			criteria: detail?.criteria ?? [],
 			failing: detail?.failing ?? [],
@@ -95,17 +117,22 @@ export async function collectLoops(em: EntityManager, filters: ReportFilters): P
 }
 
 /** The requirement version in force (the highest) for each class among the loops. */
-export async function requirementsInForce(em: EntityManager, loops: ReportLoop[]): Promise<FrozenRequirement[]> {
+export async function requirementsInForce(
+	em: EntityManager,
+	loops: ReportLoop[]
+): Promise<FrozenRequirement[]> {
 	const classKeys = [...new Set(loops.map((l) => l.class.key))];
 	if (!classKeys.length) return [];
 	const columns = targetColumns('r.');
-	const rows = await em.getConnection().execute<({ id: string; version: number; class_key: string; class_name: string } & Targets)[]>(
-		`select distinct on (c.id) r.id, r.version, c.key as class_key, c.name as class_name, ${columns}
+	const rows = await em
+		.getConnection()
+		.execute<({ id: string; version: number; class_key: string; class_name: string } & Targets)[]>(
+			`select distinct on (c.id) r.id, r.version, c.key as class_key, c.name as class_name, ${columns}
 		 from requirement r join loop_class c on c.id = r.loop_class_id
 		 where c.key in (select jsonb_array_elements_text(?::jsonb))
 		 order by c.id, r.version desc`,
-		[JSON.stringify(classKeys)]
-	);
+			[JSON.stringify(classKeys)]
+		);
 	return rows
 		.map(({ id, version, class_key, class_name, ...targets }) => ({
 			classKey: class_key,

@@ -9,12 +9,28 @@
  */
 import { randomUUID } from 'node:crypto';
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { ProductSchema, LoopClassSchema, ReportExportSchema, UserSchema, type ReportExport, type ReportState } from '../db/entities';
+import {
+	ProductSchema,
+	LoopClassSchema,
+	ReportExportSchema,
+	UserSchema,
+	type ReportExport,
+	type ReportState
+} from '../db/entities';
 import { Conflict, Invalid, NotFound } from '../errors';
 import { enqueueInTx } from '../jobs/enqueue';
 import { QUEUES } from '../jobs/queues';
 import { getObjectBytes } from '../storage/s3';
-import { iso, isUuid, offsetOf, userRef, type Actor, type PageOf, type Paging, type UserRef } from '../registry/common';
+import {
+	iso,
+	isUuid,
+	offsetOf,
+	userRef,
+	type Actor,
+	type PageOf,
+	type Paging,
+	type UserRef
+} from '../registry/common';
 import {
 	REPORT_FILTER_NAMES,
 	cleanFilters,
@@ -86,15 +102,25 @@ export function reportView(r: ReportExport): ReportView {
 /** The request body, with errors that name the field: `filters.colour`, `format`. */
 function parseRequest(input: unknown): { format: ReportFormat; filters: ReportFilters } {
 	const parsed = reportRequestSchema.safeParse(input);
-	if (parsed.success) return { format: parsed.data.format, filters: cleanFilters(parsed.data.filters) };
+	if (parsed.success)
+		return { format: parsed.data.format, filters: cleanFilters(parsed.data.filters) };
 	const issue = parsed.error.issues[0];
 	const at = issue.path.map(String);
 	if (issue.code === 'unrecognized_keys') {
 		const field = [...at, issue.keys[0]].join('.');
-		const known = at[0] === 'filters' ? ` Filters are ${REPORT_FILTER_NAMES.join(', ')}.` : ' The body has format and filters.';
-		throw new Invalid(`Unknown field${issue.keys.length > 1 ? 's' : ''}: ${issue.keys.join(', ')}.${known}`, field);
+		const known =
+			at[0] === 'filters'
+				? ` Filters are ${REPORT_FILTER_NAMES.join(', ')}.`
+				: ' The body has format and filters.';
+		throw new Invalid(
+			`Unknown field${issue.keys.length > 1 ? 's' : ''}: ${issue.keys.join(', ')}.${known}`,
+			field
+		);
 	}
-	const message = issue.code === 'invalid_type' && issue.input === undefined ? 'This field is required.' : issue.message;
+	const message =
+		issue.code === 'invalid_type' && issue.input === undefined
+			? 'This field is required.'
+			: issue.message;
 	throw new Invalid(message, at.join('.') || undefined);
 }
 
@@ -108,7 +134,11 @@ async function checkReferences(em: EntityManager, f: ReportFilters): Promise<voi
 	}
 }
 
-export async function requestReport(em: EntityManager, actor: Actor, input: unknown): Promise<ReportView> {
+export async function requestReport(
+	em: EntityManager,
+	actor: Actor,
+	input: unknown
+): Promise<ReportView> {
 	const { format, filters } = parseRequest(input);
 	await checkReferences(em, filters);
 	const id = randomUUID();
@@ -131,7 +161,9 @@ export async function requestReport(em: EntityManager, actor: Actor, input: unkn
 }
 
 async function reportById(em: EntityManager, id: string): Promise<ReportExport> {
-	const row = isUuid(id) ? await em.findOne(ReportExportSchema, { id }, { populate: ['requestedBy'] }) : null;
+	const row = isUuid(id)
+		? await em.findOne(ReportExportSchema, { id }, { populate: ['requestedBy'] })
+		: null;
 	if (!row) throw new NotFound('No such report.');
 	return row;
 }
@@ -150,7 +182,12 @@ export async function listReports(em: EntityManager, paging: Paging): Promise<Pa
 	const [rows, total] = await em.findAndCount(
 		ReportExportSchema,
 		{},
-		{ populate: ['requestedBy'], orderBy: { requestedAt: 'desc', id: 'desc' }, limit: paging.pageSize, offset: offsetOf(paging) }
+		{
+			populate: ['requestedBy'],
+			orderBy: { requestedAt: 'desc', id: 'desc' },
+			limit: paging.pageSize,
+			offset: offsetOf(paging)
+		}
 	);
 	return { items: rows.map(reportView), total, ...paging };
 }
@@ -167,7 +204,11 @@ export async function reportFile(em: EntityManager, id: string): Promise<ReportF
 		const why = row.state === 'failed' ? `failed: ${row.errorMessage}` : `still ${row.state}`;
 		throw new Conflict(`The report is ${why}.`);
 	}
-	return { bytes: await getObjectBytes(row.objectKey), contentType: CONTENT_TYPES[row.format], fileName: reportFileName(row) };
+	return {
+		bytes: await getObjectBytes(row.objectKey),
+		contentType: CONTENT_TYPES[row.format],
+		fileName: reportFileName(row)
+	};
 }
 
 export { CONTENT_TYPES };

@@ -36,29 +36,57 @@ function dashed(doc: Doc, d: string, color = REF, width = 0.6) {
 	doc.undash();
 }
 
-function small(doc: Doc, text: string, x: number, y: number, width: number, align: 'left' | 'center' | 'right' = 'left', color = LABEL) {
+function small(
+	doc: Doc,
+	text: string,
+	x: number,
+	y: number,
+	width: number,
+	align: 'left' | 'center' | 'right' = 'left',
+	color = LABEL
+) {
 	doc.font('sans').fontSize(6.5).fillColor(color);
 	put(doc, pdfSafe(text), x, y, { width, align });
 }
 
 function xAxis(doc: Doc, axis: Axis, panel: Rect, labels: boolean) {
 	for (const t of axis.ticks) {
-		doc.moveTo(t.position, panel.top).lineTo(t.position, panel.bottom).lineWidth(t.major ? 0.35 : 0.2).stroke(GRID);
+		doc
+			.moveTo(t.position, panel.top)
+			.lineTo(t.position, panel.bottom)
+			.lineWidth(t.major ? 0.35 : 0.2)
+			.stroke(GRID);
 		if (labels && t.label) small(doc, t.label, t.position - 20, panel.bottom + 2, 40, 'center');
 	}
 }
 
 function yAxis(doc: Doc, axis: Axis, panel: Rect) {
 	for (const t of axis.ticks) {
-		doc.moveTo(panel.left, t.position).lineTo(panel.right, t.position).lineWidth(t.major ? 0.35 : 0.2).stroke(GRID);
+		doc
+			.moveTo(panel.left, t.position)
+			.lineTo(panel.right, t.position)
+			.lineWidth(t.major ? 0.35 : 0.2)
+			.stroke(GRID);
 		if (t.label) small(doc, t.label, panel.left - 36, t.position - 3, 33, 'right');
 	}
 }
 
-const frame = (doc: Doc, r: Rect) => doc.rect(r.left, r.top, r.right - r.left, r.bottom - r.top).lineWidth(0.6).stroke(FRAME);
+const frame = (doc: Doc, r: Rect) =>
+	doc
+		.rect(r.left, r.top, r.right - r.left, r.bottom - r.top)
+		.lineWidth(0.6)
+		.stroke(FRAME);
 
 /** Magnitude over phase, with 0 dB, the critical lines and the margins as dimension lines. */
-export function drawBode(doc: Doc, cases: CaseResponse[], margins: MarginsResult | null, x: number, y: number, width: number, height: number) {
+export function drawBode(
+	doc: Doc,
+	cases: CaseResponse[],
+	margins: MarginsResult | null,
+	x: number,
+	y: number,
+	width: number,
+	height: number
+) {
 	const g = bodeGeometry(cases, margins, { width, height, insets: INSETS, gap: 22 });
 	doc.save().translate(x, y);
 	for (const [panel, axis, title] of [
@@ -86,20 +114,36 @@ export function drawBode(doc: Doc, cases: CaseResponse[], margins: MarginsResult
 	}
 	for (const c of g.gainCrossovers) doc.circle(c.x, c.y, 1.8).fill(MARK);
 	for (const c of g.phaseCrossovers) doc.circle(c.x, c.y, 1.8).fill(MARK);
-	small(doc, 'frequency (Hz)', g.phasePanel.left, g.phasePanel.bottom + 11, g.phasePanel.right - g.phasePanel.left, 'center');
+	small(
+		doc,
+		'frequency (Hz)',
+		g.phasePanel.left,
+		g.phasePanel.bottom + 11,
+		g.phasePanel.right - g.phasePanel.left,
+		'center'
+	);
 	small(doc, 'dB', g.magnitudePanel.left - 36, g.magnitudePanel.top + 8, 14, 'left');
 	small(doc, 'deg', g.phasePanel.left - 36, g.phasePanel.top + 8, 14, 'left');
 	doc.restore();
 }
 
 /** The Nyquist curve (both frequency signs), −1, the unit circle and what the targets forbid. */
-export function drawNyquist(doc: Doc, cases: CaseResponse[], margins: MarginsResult | null, targets: Targets | null, x: number, y: number, size: number) {
+export function drawNyquist(
+	doc: Doc,
+	cases: CaseResponse[],
+	margins: MarginsResult | null,
+	targets: Targets | null,
+	x: number,
+	y: number,
+	size: number
+) {
 	const g = nyquistGeometry(cases, margins, { width: size, height: size, insets: INSETS, targets });
 	doc.save().translate(x, y);
 	xAxis(doc, g.x, g.frame, true);
 	yAxis(doc, g.y, g.frame);
 	if (g.forbidden.disc) doc.path(g.forbidden.disc.path).fill(FORBIDDEN);
-	if (g.forbidden.diskMarginDisc) doc.path(g.forbidden.diskMarginDisc.path).fillOpacity(0.6).fill(FORBIDDEN).fillOpacity(1);
+	if (g.forbidden.diskMarginDisc)
+		doc.path(g.forbidden.diskMarginDisc.path).fillOpacity(0.6).fill(FORBIDDEN).fillOpacity(1);
 	for (const s of g.forbidden.gainSegments) doc.path(s.path).lineWidth(3).stroke(FORBIDDEN);
 	if (g.forbidden.phaseArc) doc.path(g.forbidden.phaseArc.path).lineWidth(3).stroke(FORBIDDEN);
 	frame(doc, g.frame);

@@ -25,10 +25,21 @@ export function fitText(doc: Doc, text: string, width: number): string {
 }
 
 /** Draw one line with the current font, size and colour; returns its width. */
-export function put(doc: Doc, text: string, x: number, y: number, options: PutOptions = {}): number {
+export function put(
+	doc: Doc,
+	text: string,
+	x: number,
+	y: number,
+	options: PutOptions = {}
+): number {
 	const line = options.width === undefined ? text : fitText(doc, text, options.width);
 	const w = doc.widthOfString(line);
-	const dx = options.width === undefined || !options.align || options.align === 'left' ? 0 : options.align === 'right' ? options.width - w : (options.width - w) / 2;
+	const dx =
+		options.width === undefined || !options.align || options.align === 'left'
+			? 0
+			: options.align === 'right'
+				? options.width - w
+				: (options.width - w) / 2;
 	doc.text(line, x + dx, y, { lineBreak: false });
 	return w;
 }
@@ -36,7 +47,9 @@ export function put(doc: Doc, text: string, x: number, y: number, options: PutOp
 /** Height of `text` in a column `width` wide: one line when it fits, else as pdfkit wraps it. */
 export function blockHeight(doc: Doc, text: string, width: number): number {
 	if (!text) return 0;
-	return !text.includes('\n') && doc.widthOfString(text) <= width ? doc.currentLineHeight(true) : doc.heightOfString(text, { width });
+	return !text.includes('\n') && doc.widthOfString(text) <= width
+		? doc.currentLineHeight(true)
+		: doc.heightOfString(text, { width });
 }
 
 /** Text in a column: one `put` when it fits on a line, else wrapped by pdfkit. Leaves doc.y below it. */

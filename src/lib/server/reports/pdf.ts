@@ -17,7 +17,14 @@ import { VERDICT_LABELS } from '../../compliance/labels';
 import type { CaseResponse, MarginsResult } from '../../margins';
 import { scopeInWords } from '../../reports/filters';
 import type { ReportData, ReportLoop } from '../../reports/types';
-import { actualText, pdfSafe, requiredText, shortfallText, STATUS_WORDS, targetsInWords } from '../../reports/words';
+import {
+	actualText,
+	pdfSafe,
+	requiredText,
+	shortfallText,
+	STATUS_WORDS,
+	targetsInWords
+} from '../../reports/words';
 import { CASE_DASH, CASE_INK, drawBode, drawNyquist } from './pdf-plots';
 import { sfntFont } from './woff';
 import { block, blockHeight, put } from './pdf-text';
@@ -33,7 +40,8 @@ const FONTS = {
 
 export const CAUTION =
 	'Margins computed from a model are only as good as the model. Local codes, standards and licensed engineering judgement decide whether a loop is fit for service.';
-const CAUTION_SHORT = 'Results are only as good as the model; local codes, standards and licensed engineering judgement decide.';
+const CAUTION_SHORT =
+	'Results are only as good as the model; local codes, standards and licensed engineering judgement decide.';
 
 const INK = '#1b2330';
 const SOFT = '#4a5565';
@@ -69,7 +77,8 @@ export interface PdfInput {
 }
 
 /** Loops that get a page of their own. */
-export const needsPlotPage = (l: Pick<ReportLoop, 'verdict'>) => l.verdict === 'noncompliant' || l.verdict === 'unstable';
+export const needsPlotPage = (l: Pick<ReportLoop, 'verdict'>) =>
+	l.verdict === 'noncompliant' || l.verdict === 'unstable';
 
 export function verdictCounts(loops: Pick<ReportLoop, 'verdict'>[]): Record<Verdict, number> {
 	const counts = Object.fromEntries(VERDICTS.map((v) => [v, 0])) as Record<Verdict, number>;
@@ -85,7 +94,12 @@ function verdictShape(doc: Doc, verdict: Verdict, x: number, y: number, s = 8) {
 	switch (verdict) {
 		case 'compliant':
 			doc.circle(6, 6, 5).fill(ink);
-			doc.path('M3.5 6.2 5.2 7.8 8.6 4.3').lineWidth(1.6).lineCap('round').lineJoin('round').stroke('#ffffff');
+			doc
+				.path('M3.5 6.2 5.2 7.8 8.6 4.3')
+				.lineWidth(1.6)
+				.lineCap('round')
+				.lineJoin('round')
+				.stroke('#ffffff');
 			break;
 		case 'noncompliant':
 			doc.path('M1 2h10L6 11z').fill(ink);
@@ -96,7 +110,11 @@ function verdictShape(doc: Doc, verdict: Verdict, x: number, y: number, s = 8) {
 			break;
 		case 'unstable':
 			doc.path('M4 1h4l3 3v4l-3 3H4L1 8V4z').fill(ink);
-			doc.path('M4.2 4.2 7.8 7.8M7.8 4.2 4.2 7.8').lineWidth(1.4).lineCap('round').stroke('#ffffff');
+			doc
+				.path('M4.2 4.2 7.8 7.8M7.8 4.2 4.2 7.8')
+				.lineWidth(1.4)
+				.lineCap('round')
+				.stroke('#ffffff');
 			break;
 		case 'pending':
 			doc.circle(6, 6, 4.5).lineWidth(1.5).dash(2.2, { space: 1.6 }).stroke(ink);
@@ -122,7 +140,11 @@ function verdictLabel(doc: Doc, verdict: Verdict, x: number, y: number, size = 8
 const T = (s: string) => pdfSafe(s);
 
 function heading(doc: Doc, text: string, size = 14) {
-	doc.font('bold').fontSize(size).fillColor(INK).text(T(text), MARGIN.left, doc.y, { width: CONTENT_W });
+	doc
+		.font('bold')
+		.fontSize(size)
+		.fillColor(INK)
+		.text(T(text), MARGIN.left, doc.y, { width: CONTENT_W });
 	doc.moveDown(0.3);
 }
 
@@ -130,7 +152,11 @@ function keyValue(doc: Doc, rows: [string, string, ('mono' | 'sans')?][], labelW
 	for (const [k, v, font] of rows) {
 		const y = doc.y;
 		doc.font('sans').fontSize(9).fillColor(SOFT).text(k, MARGIN.left, y, { width: labelW });
-		doc.font(font ?? 'sans').fontSize(9).fillColor(INK).text(T(v), MARGIN.left + labelW, y, { width: CONTENT_W - labelW });
+		doc
+			.font(font ?? 'sans')
+			.fontSize(9)
+			.fillColor(INK)
+			.text(T(v), MARGIN.left + labelW, y, { width: CONTENT_W - labelW });
 		doc.moveDown(0.25);
 	}
 }
@@ -138,11 +164,19 @@ function keyValue(doc: Doc, rows: [string, string, ('mono' | 'sans')?][], labelW
 const when = (iso: string | null) => (iso ? `${iso.slice(0, 10)} ${iso.slice(11, 19)} UTC` : '—');
 
 function cover(doc: Doc, r: ReportData) {
-	doc.font('bold').fontSize(10).fillColor(BRAND).text('HEADROOM', MARGIN.left, MARGIN.top, { characterSpacing: 1.5 });
+	doc
+		.font('bold')
+		.fontSize(10)
+		.fillColor(BRAND)
+		.text('HEADROOM', MARGIN.left, MARGIN.top, { characterSpacing: 1.5 });
 	doc.moveDown(0.6);
 	doc.font('bold').fontSize(24).fillColor(INK).text('Compliance report');
 	doc.moveDown(0.2);
-	doc.font('sans').fontSize(13).fillColor(SOFT).text(T(scopeInWords(r.filters)), { width: CONTENT_W });
+	doc
+		.font('sans')
+		.fontSize(13)
+		.fillColor(SOFT)
+		.text(T(scopeInWords(r.filters)), { width: CONTENT_W });
 	doc.moveDown(1);
 	keyValue(doc, [
 		['Generated', when(r.generatedAt)],
@@ -166,25 +200,50 @@ function cover(doc: Doc, r: ReportData) {
 	doc.y = top + 2 * 22 + 6;
 	doc.x = MARGIN.left;
 	heading(doc, 'Requirement versions in force', 12);
-	if (!r.requirements.length) doc.font('sans').fontSize(9).fillColor(SOFT).text('No loop class in scope has targets yet.');
+	if (!r.requirements.length)
+		doc.font('sans').fontSize(9).fillColor(SOFT).text('No loop class in scope has targets yet.');
 	for (const q of r.requirements) {
 		const y = doc.y;
-		doc.font('bold').fontSize(9).fillColor(INK).text(T(`${q.className} (${q.classKey}) · version ${q.version}`), MARGIN.left, y, { width: CONTENT_W });
-		doc.font('sans').fontSize(8.5).fillColor(SOFT).text(T(targetsInWords(q.targets)), { width: CONTENT_W });
+		doc
+			.font('bold')
+			.fontSize(9)
+			.fillColor(INK)
+			.text(T(`${q.className} (${q.classKey}) · version ${q.version}`), MARGIN.left, y, {
+				width: CONTENT_W
+			});
+		doc
+			.font('sans')
+			.fontSize(8.5)
+			.fillColor(SOFT)
+			.text(T(targetsInWords(q.targets)), { width: CONTENT_W });
 		doc.moveDown(0.35);
 	}
-	const stale = r.loops.filter((l) => l.requirement && !r.requirements.some((q) => q.requirementId === l.requirement!.id));
+	const stale = r.loops.filter(
+		(l) => l.requirement && !r.requirements.some((q) => q.requirementId === l.requirement!.id)
+	);
 	if (stale.length) {
-		doc.font('sans').fontSize(8.5).fillColor(SOFT).text(
-			`${stale.length} loop(s) were last judged against an older version; their rows name the version used.`,
-			{ width: CONTENT_W }
-		);
+		doc
+			.font('sans')
+			.fontSize(8.5)
+			.fillColor(SOFT)
+			.text(
+				`${stale.length} loop(s) were last judged against an older version; their rows name the version used.`,
+				{ width: CONTENT_W }
+			);
 	}
 	doc.moveDown(1);
 	const y = doc.y;
 	doc.rect(MARGIN.left, y, CONTENT_W, 46).lineWidth(0.8).stroke(LINE);
-	doc.font('bold').fontSize(9).fillColor(INK).text('Caution', MARGIN.left + 10, y + 8);
-	doc.font('sans').fontSize(8.5).fillColor(SOFT).text(CAUTION, MARGIN.left + 10, y + 20, { width: CONTENT_W - 20 });
+	doc
+		.font('bold')
+		.fontSize(9)
+		.fillColor(INK)
+		.text('Caution', MARGIN.left + 10, y + 8);
+	doc
+		.font('sans')
+		.fontSize(8.5)
+		.fillColor(SOFT)
+		.text(CAUTION, MARGIN.left + 10, y + 20, { width: CONTENT_W - 20 });
 }
 
 // ---- the loop table -------------------------------------------------------------------------
@@ -210,13 +269,21 @@ function tableHeader(doc: Doc) {
 	doc.rect(MARGIN.left, y, CONTENT_W, 24).fill('#eef1f5');
 	let x = MARGIN.left;
 	for (const c of ALL_COLS) {
-		doc.font('bold').fontSize(7).fillColor(SOFT).text(c.title, x + 3, y + 3, { width: c.w - 6 });
+		doc
+			.font('bold')
+			.fontSize(7)
+			.fillColor(SOFT)
+			.text(c.title, x + 3, y + 3, { width: c.w - 6 });
 		x += c.w;
 	}
 	doc.y = y + 24;
 }
 
-function cellCriterion(c: CriterionResult | undefined): { top: string; bottom: string; fail: boolean } {
+function cellCriterion(c: CriterionResult | undefined): {
+	top: string;
+	bottom: string;
+	fail: boolean;
+} {
 	if (!c) return { top: '—', bottom: 'no target', fail: false };
 	const mark = c.status === 'fail' ? ' fail' : c.status === 'covered' ? ' covered' : '';
 	return { top: `${actualText(c)}${mark}`, bottom: requiredText(c), fail: c.status === 'fail' };
@@ -232,7 +299,10 @@ function tableRow(doc: Doc, l: ReportLoop, shade: boolean) {
 		{
 			top: l.criteria
 				.filter((c) => !MAIN.includes(c.criterion) && c.status !== 'not-applicable')
-				.map((c) => `${CRITERION_LABELS[c.criterion]} ${actualText(c)} (${requiredText(c)}) ${STATUS_WORDS[c.status]}`)
+				.map(
+					(c) =>
+						`${CRITERION_LABELS[c.criterion]} ${actualText(c)} (${requiredText(c)}) ${STATUS_WORDS[c.status]}`
+				)
 				.join('; '),
 			bottom: l.activeDeviations ? `${l.activeDeviations} active deviation(s)` : ''
 		}
@@ -258,7 +328,10 @@ function tableRow(doc: Doc, l: ReportLoop, shade: boolean) {
 		if (i === 3) {
 			verdictLabel(doc, l.verdict, x + 3, y + ROW_PAD, 7);
 		} else {
-			doc.font(t.fail ? 'bold' : 'sans').fontSize(7).fillColor(t.fail ? VERDICT_INK.noncompliant : INK);
+			doc
+				.font(t.fail ? 'bold' : 'sans')
+				.fontSize(7)
+				.fillColor(t.fail ? VERDICT_INK.noncompliant : INK);
 			block(doc, T(t.top), x + 3, y + ROW_PAD, w);
 			if (t.bottom) {
 				doc.font('sans').fontSize(7).fillColor(FAINT);
@@ -267,7 +340,11 @@ function tableRow(doc: Doc, l: ReportLoop, shade: boolean) {
 		}
 		x += ALL_COLS[i].w;
 	});
-	doc.moveTo(MARGIN.left, y + h).lineTo(MARGIN.left + CONTENT_W, y + h).lineWidth(0.4).stroke(LINE);
+	doc
+		.moveTo(MARGIN.left, y + h)
+		.lineTo(MARGIN.left + CONTENT_W, y + h)
+		.lineWidth(0.4)
+		.stroke(LINE);
 	doc.y = y + h;
 	doc.x = MARGIN.left;
 }
@@ -275,10 +352,14 @@ function tableRow(doc: Doc, l: ReportLoop, shade: boolean) {
 function loopTable(doc: Doc, loops: ReportLoop[]) {
 	doc.addPage();
 	heading(doc, 'Every loop: targets against actuals');
-	doc.font('sans').fontSize(8).fillColor(SOFT).text(
-		'Each margin cell shows the worst case over all operating cases (top) and the target of the requirement version named in the class column (below). "fail" marks a shortfall; "covered" one an active deviation covers.',
-		{ width: CONTENT_W }
-	);
+	doc
+		.font('sans')
+		.fontSize(8)
+		.fillColor(SOFT)
+		.text(
+			'Each margin cell shows the worst case over all operating cases (top) and the target of the requirement version named in the class column (below). "fail" marks a shortfall; "covered" one an active deviation covers.',
+			{ width: CONTENT_W }
+		);
 	doc.moveDown(0.5);
 	if (!loops.length) {
 		doc.font('sans').fontSize(10).fillColor(INK).text('No loop matches this scope.');
@@ -308,7 +389,9 @@ function criteriaTable(doc: Doc, criteria: CriterionResult[]) {
 		x += c.w;
 	}
 	y += 14;
-	const rows = [...criteria].sort((a, b) => Number(b.status === 'fail') - Number(a.status === 'fail'));
+	const rows = [...criteria].sort(
+		(a, b) => Number(b.status === 'fail') - Number(a.status === 'fail')
+	);
 	for (const c of rows) {
 		const values = [
 			CRITERION_LABELS[c.criterion],
@@ -321,12 +404,19 @@ function criteriaTable(doc: Doc, criteria: CriterionResult[]) {
 		x = MARGIN.left;
 		values.forEach((v, i) => {
 			const fail = c.status === 'fail' && i !== 4;
-			doc.font(fail ? 'bold' : 'sans').fontSize(8).fillColor(fail ? VERDICT_INK.noncompliant : INK);
+			doc
+				.font(fail ? 'bold' : 'sans')
+				.fontSize(8)
+				.fillColor(fail ? VERDICT_INK.noncompliant : INK);
 			put(doc, T(v), x + 3, y + 3, { width: cols[i].w - 6 });
 			x += cols[i].w;
 		});
 		y += 15;
-		doc.moveTo(MARGIN.left, y).lineTo(MARGIN.left + CONTENT_W, y).lineWidth(0.4).stroke(LINE);
+		doc
+			.moveTo(MARGIN.left, y)
+			.lineTo(MARGIN.left + CONTENT_W, y)
+			.lineWidth(0.4)
+			.stroke(LINE);
 	}
 	doc.y = y + 8;
 	doc.x = MARGIN.left;
@@ -335,7 +425,10 @@ function criteriaTable(doc: Doc, criteria: CriterionResult[]) {
 function legend(doc: Doc, cases: CaseResponse[], x: number, y: number) {
 	cases.slice(0, CASE_DASH.length).forEach((c, i) => {
 		const yy = y + i * 11;
-		doc.moveTo(x, yy + 4).lineTo(x + 18, yy + 4).lineWidth(1.1);
+		doc
+			.moveTo(x, yy + 4)
+			.lineTo(x + 18, yy + 4)
+			.lineWidth(1.1);
 		const dash = CASE_DASH[i];
 		if (dash) doc.dash(dash[0], { space: dash[1] });
 		doc.stroke(CASE_INK[i]);
@@ -345,30 +438,54 @@ function legend(doc: Doc, cases: CaseResponse[], x: number, y: number) {
 	});
 	if (cases.length > CASE_DASH.length) {
 		doc.font('sans').fontSize(7).fillColor(SOFT);
-		put(doc, `… and ${cases.length - CASE_DASH.length} more case(s), not drawn`, x, y + CASE_DASH.length * 11);
+		put(
+			doc,
+			`… and ${cases.length - CASE_DASH.length} more case(s), not drawn`,
+			x,
+			y + CASE_DASH.length * 11
+		);
 	}
 }
 
 function loopPage(doc: Doc, l: ReportLoop, plot: LoopPlot | undefined) {
 	doc.addPage();
-	doc.font('sans').fontSize(8).fillColor(SOFT).text(T(`${l.product.name} (${l.product.key})`), MARGIN.left, MARGIN.top);
+	doc
+		.font('sans')
+		.fontSize(8)
+		.fillColor(SOFT)
+		.text(T(`${l.product.name} (${l.product.key})`), MARGIN.left, MARGIN.top);
 	heading(doc, `${l.product.key} / ${l.key} — ${l.name}`, 15);
 	verdictLabel(doc, l.verdict, MARGIN.left, doc.y, 10);
 	doc.y += 16;
 	doc.x = MARGIN.left;
-	keyValue(doc, [
-		['Class', `${l.class.name} (${l.class.key})${l.requirement ? `, judged against version ${l.requirement.version}` : ''}`],
-		['Owner', `${l.owner.name} <${l.owner.email}>`],
-		['Revision', l.revision ? `${l.revision.number} · ${l.revision.fileName}` : '—'],
-		['sha-256', l.revision?.sha256 ?? '—', 'mono'],
-		['Judged', when(l.judgedAt)]
-	], 80);
+	keyValue(
+		doc,
+		[
+			[
+				'Class',
+				`${l.class.name} (${l.class.key})${l.requirement ? `, judged against version ${l.requirement.version}` : ''}`
+			],
+			['Owner', `${l.owner.name} <${l.owner.email}>`],
+			['Revision', l.revision ? `${l.revision.number} · ${l.revision.fileName}` : '—'],
+			['sha-256', l.revision?.sha256 ?? '—', 'mono'],
+			['Judged', when(l.judgedAt)]
+		],
+		80
+	);
 	doc.moveDown(0.4);
-	heading(doc, l.verdict === 'unstable' ? 'Criteria (the closed loop is unstable)' : 'Failing criteria first', 10);
+	heading(
+		doc,
+		l.verdict === 'unstable' ? 'Criteria (the closed loop is unstable)' : 'Failing criteria first',
+		10
+	);
 	if (l.criteria.length) criteriaTable(doc, l.criteria);
 	else doc.font('sans').fontSize(8).fillColor(SOFT).text('No criteria were judged.').moveDown(0.5);
 	if (!plot?.cases.length) {
-		doc.font('sans').fontSize(9).fillColor(SOFT).text('No plot: the judged revision has no sampled response.', MARGIN.left, doc.y + 6);
+		doc
+			.font('sans')
+			.fontSize(9)
+			.fillColor(SOFT)
+			.text('No plot: the judged revision has no sampled response.', MARGIN.left, doc.y + 6);
 		return;
 	}
 	const avail = BOTTOM - doc.y - 12;
@@ -380,12 +497,28 @@ function loopPage(doc: Doc, l: ReportLoop, plot: LoopPlot | undefined) {
 	y += bodeH + 6;
 	doc.font('bold').fontSize(7.5).fillColor(INK);
 	put(doc, 'Nyquist', MARGIN.left + 42, y + 4);
-	const forbidden = drawNyquist(doc, plot.cases, plot.margins, l.requirement?.targets ?? null, MARGIN.left, y, nyq);
+	const forbidden = drawNyquist(
+		doc,
+		plot.cases,
+		plot.margins,
+		l.requirement?.targets ?? null,
+		MARGIN.left,
+		y,
+		nyq
+	);
 	const lx = MARGIN.left + nyq + 16;
 	legend(doc, plot.cases, lx, y + 8);
 	if (forbidden.length) {
-		doc.font('bold').fontSize(7).fillColor(INK).text('Shaded: ruled out by the targets', lx, y + 70, { width: CONTENT_W - nyq - 16 });
-		doc.font('sans').fontSize(7).fillColor(SOFT).text(T(forbidden.join('\n')), lx, doc.y + 2, { width: CONTENT_W - nyq - 16 });
+		doc
+			.font('bold')
+			.fontSize(7)
+			.fillColor(INK)
+			.text('Shaded: ruled out by the targets', lx, y + 70, { width: CONTENT_W - nyq - 16 });
+		doc
+			.font('sans')
+			.fontSize(7)
+			.fillColor(SOFT)
+			.text(T(forbidden.join('\n')), lx, doc.y + 2, { width: CONTENT_W - nyq - 16 });
 	}
 	doc.y = y + nyq + 4;
 	doc.x = MARGIN.left;
@@ -399,10 +532,22 @@ function footers(doc: Doc, r: ReportData) {
 		const saved = doc.page.margins.bottom;
 		doc.page.margins.bottom = 0;
 		const y = PAGE_H - MARGIN.bottom + 18;
-		doc.moveTo(MARGIN.left, y - 6).lineTo(PAGE_W - MARGIN.right, y - 6).lineWidth(0.4).stroke(LINE);
+		doc
+			.moveTo(MARGIN.left, y - 6)
+			.lineTo(PAGE_W - MARGIN.right, y - 6)
+			.lineWidth(0.4)
+			.stroke(LINE);
 		doc.font('sans').fontSize(7).fillColor(FAINT);
-		put(doc, `Headroom compliance report ${r.id.slice(0, 8)} · ${when(r.generatedAt)}`, MARGIN.left, y);
-		put(doc, `page ${i + 1} of ${range.count}`, PAGE_W - MARGIN.right - 90, y, { width: 90, align: 'right' });
+		put(
+			doc,
+			`Headroom compliance report ${r.id.slice(0, 8)} · ${when(r.generatedAt)}`,
+			MARGIN.left,
+			y
+		);
+		put(doc, `page ${i + 1} of ${range.count}`, PAGE_W - MARGIN.right - 90, y, {
+			width: 90,
+			align: 'right'
+		});
 		put(doc, CAUTION_SHORT, MARGIN.left, y + 10, { width: CONTENT_W });
 		doc.page.margins.bottom = saved;
 	}

@@ -7,7 +7,13 @@
  */
 import { createHash } from 'node:crypto';
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { ENGINE_VERSION, parseModelText, sampleResponse, type CaseResponse, type MarginsResult } from '../../margins';
+import {
+	ENGINE_VERSION,
+	parseModelText,
+	sampleResponse,
+	type CaseResponse,
+	type MarginsResult
+} from '../../margins';
 import type { ReportFilters, ReportFormat } from '../../reports/filters';
 import { renderCsv } from '../../reports/csv';
 import type { ReportData, ReportLoop } from '../../reports/types';
@@ -50,11 +56,16 @@ export async function sampledResponses(l: ReportLoop, points = 160): Promise<Cas
 		bytes = await getObjectBytes(l.revision.objectKey);
 	} catch (error) {
 		const why = error instanceof Error ? error.message : String(error);
-		throw new Error(`Could not read the model of ${l.product.key}/${l.key} revision ${l.revision.number} from storage (${why}).`, { cause: error });
+		throw new Error(
+			`Could not read the model of ${l.product.key}/${l.key} revision ${l.revision.number} from storage (${why}).`,
+			{ cause: error }
+		);
 	}
 	const parsed = parseModelText(new TextDecoder().decode(bytes), l.revision.fileName);
 	if (!parsed.ok) {
-		throw new Error(`The model of ${l.product.key}/${l.key} revision ${l.revision.number} no longer parses: ${parsed.issue.message}.`);
+		throw new Error(
+			`The model of ${l.product.key}/${l.key} revision ${l.revision.number} no longer parses: ${parsed.issue.message}.`
+		);
 	}
 	return sampleResponse(parsed.model, { points });
 }
@@ -92,22 +103,32 @@ export async function buildReport(
 	const t1 = performance.now();
 	if (meta.format === 'csv') {
 		const bytes = new TextEncoder().encode(renderCsv(data));
-		return { data, bytes, timings: { collect: t1 - t0, render: performance.now() - t1, cpu: cpu() } };
+		return {
+			data,
+			bytes,
+			timings: { collect: t1 - t0, render: performance.now() - t1, cpu: cpu() }
+		};
 	}
 	const plots = await loadPlots(em, loops.filter(needsPlotPage));
 	const t2 = performance.now();
 	const bytes = await renderPdf({ report: data, plots });
-	return { data, bytes, timings: { collect: t1 - t0, models: t2 - t1, render: performance.now() - t2, cpu: cpu() } };
+	return {
+		data,
+		bytes,
+		timings: { collect: t1 - t0, models: t2 - t1, render: performance.now() - t2, cpu: cpu() }
+	};
 }
 
 /** Per plotted loop: its judged revision sampled, and the margins stored for that revision. */
 async function loadPlots(em: EntityManager, loops: ReportLoop[]): Promise<Map<string, LoopPlot>> {
 	const revisionIds = loops.map((l) => l.revision?.id).filter((x): x is string => !!x);
 	const stored = revisionIds.length
-		? await em.getConnection().execute<{ revision_id: string; result: MarginsResult }[]>(
-				'select revision_id, result from margin_report where revision_id in (select jsonb_array_elements_text(?::jsonb)::uuid)',
-				[JSON.stringify(revisionIds)]
-			)
+		? await em
+				.getConnection()
+				.execute<{ revision_id: string; result: MarginsResult }[]>(
+					'select revision_id, result from margin_report where revision_id in (select jsonb_array_elements_text(?::jsonb)::uuid)',
+					[JSON.stringify(revisionIds)]
+				)
 		: [];
 	const margins = new Map(stored.map((m) => [m.revision_id, m.result]));
 	const plots = new Map<string, LoopPlot>();
@@ -115,7 +136,12 @@ async function loadPlots(em: EntityManager, loops: ReportLoop[]): Promise<Map<st
 	for (let i = 0; i < loops.length; i += DOWNLOADS) {
 		const chunk = loops.slice(i, i + DOWNLOADS);
 		const cases = await Promise.all(chunk.map((l) => sampledResponses(l)));
-		chunk.forEach((l, k) => plots.set(l.id, { cases: cases[k], margins: (l.revision && margins.get(l.revision.id)) || null }));
+		chunk.forEach((l, k) =>
+			plots.set(l.id, {
+				cases: cases[k],
+				margins: (l.revision && margins.get(l.revision.id)) || null
+			})
+		);
 	}
 	return plots;
 }
@@ -134,8 +160,12 @@ export async function renderReport(em: EntityManager, reportId: string): Promise
 		const t = performance.now();
 		await putObject(row.object_key, bytes, CONTENT_TYPES[row.format]);
 		timings.store = performance.now() - t;
-		const phases = Object.entries(timings).map(([k, ms]) => `${k} ${ms.toFixed(0)} ms`).join(', ');
-		console.log(`[reports] ${row.id} ${row.format}: ${data.loops.length} loops, ${bytes.byteLength} bytes (${phases})`);
+		const phases = Object.entries(timings)
+			.map(([k, ms]) => `${k} ${ms.toFixed(0)} ms`)
+			.join(', ');
+		console.log(
+			`[reports] ${row.id} ${row.format}: ${data.loops.length} loops, ${bytes.byteLength} bytes (${phases})`
+		);
 		await conn.execute(
 			`update report_export set state = 'ready', finished_at = now(), size_bytes = ?, sha256 = ?, engine_version = ?,
 			        loop_count = ?, verdict_counts = ?::jsonb, requirements = ?::jsonb, evidence = ?::jsonb
@@ -153,8 +183,13 @@ export async function renderReport(em: EntityManager, reportId: string): Promise
 		);
 		return 'ready';
 	} catch (error) {
-		const message = (error instanceof Error ? error.message : String(error)).slice(0, 1000) || 'The render failed.';
-		await conn.execute(`update report_export set state = 'failed', finished_at = now(), error_message = ? where id = ?`, [message, row.id]);
+		const message =
+			(error instanceof Error ? error.message : String(error)).slice(0, 1000) ||
+			'The render failed.';
+		await conn.execute(
+			`update report_export set state = 'failed', finished_at = now(), error_message = ? where id = ?`,
+			[message, row.id]
+		);
 		throw error;
 	}
 }

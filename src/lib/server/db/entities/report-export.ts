@@ -51,8 +51,14 @@ export const ReportExportSchema = defineEntity({
 	},
 	indexes: [{ name: 'report_export_requested_at_index', properties: ['requestedAt'] }],
 	checks: [
-		{ name: 'report_export_failed_has_error', expression: "(state <> 'failed') or (error_message is not null)" },
-		{ name: 'report_export_ready_has_file', expression: "(state <> 'ready') or (size_bytes is not null and sha256 is not null)" }
+		{
+			name: 'report_export_failed_has_error',
+			expression: "(state <> 'failed') or (error_message is not null)"
+		},
+		{
+			name: 'report_export_ready_has_file',
+			expression: "(state <> 'ready') or (size_bytes is not null and sha256 is not null)"
+		}
 	]
 });
 
