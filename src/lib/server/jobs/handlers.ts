@@ -4,6 +4,7 @@ import { computeRevisions, type ComputeOutcome } from '../revisions/compute';
 import { reconcileStorage } from '../revisions/reconcile';
 import { notifyVerdict } from '../verdicts/notify';
 import { applyDeviationTimes, rejudgeClass, rejudgeLoops } from '../verdicts/rejudge';
+import { renderReport } from '../reports/render';
 import {
 	QUEUES,
 	schedules,
@@ -13,6 +14,7 @@ import {
 	type QueueName,
 	type RejudgeClassData,
 	type RejudgeLoopsData,
+	type RenderReportData,
 	type SendDigestData
 } from './queues';
 import { openDigests, sendDigest } from '../verdicts/digest';
@@ -102,6 +104,11 @@ export async function registerHandlers(boss: PgBoss, options: { origin: string }
 	);
 	await boss.work(QUEUES.expireDeviations, { pollingIntervalSeconds: 5 }, each(boss, QUEUES.expireDeviations, async () => applyDeviationTimes(await forkEm())));
 	await boss.work(QUEUES.reconcileStorage, { pollingIntervalSeconds: 5 }, each(boss, QUEUES.reconcileStorage, async () => reconcileStorage(await forkEm())));
+	await boss.work<RenderReportData>(
+		QUEUES.renderReport,
+		{ pollingIntervalSeconds: 1 },
+		each(boss, QUEUES.renderReport, async ({ reportId }) => renderReport(await forkEm(), reportId))
+	);
 	await boss.work(QUEUES.openDigests, { pollingIntervalSeconds: 5 }, each(boss, QUEUES.openDigests, async () => openDigests(await forkEm())));
 	await boss.work<SendDigestData>(
 		QUEUES.sendDigest,

@@ -17,7 +17,8 @@ export const QUEUES = {
 	/** Scheduled daily: a digest (outbox row + send job) for every lead who chose one. */
 	openDigests: 'verdict.digest',
 	sendDigest: 'verdict.send-digest',
-	reconcileStorage: 'storage.reconcile'
+	reconcileStorage: 'storage.reconcile',
+	renderReport: 'report.render'
 } as const;
 
 export type QueueName = (typeof QUEUES)[keyof typeof QUEUES];
@@ -34,7 +35,9 @@ export const queueOptions = (): Record<QueueName, Omit<PgBoss.Queue, 'name'>> =>
 	[QUEUES.expireDeviations]: { retryLimit: 2, retryDelay: 10, expireInSeconds: 300 },
 	[QUEUES.reconcileStorage]: { retryLimit: 2, retryDelay: 10, expireInSeconds: 600 },
 	[QUEUES.openDigests]: { retryLimit: 5, retryDelay: 60, retryBackoff: true, expireInSeconds: 300 },
-	[QUEUES.sendDigest]: { retryLimit: 30, retryDelay: 30, retryBackoff: true, expireInSeconds: 60 }
+	[QUEUES.sendDigest]: { retryLimit: 30, retryDelay: 30, retryBackoff: true, expireInSeconds: 60 },
+	// A render that failed (storage down, a model gone) is tried twice more; the row shows the message.
+	[QUEUES.renderReport]: { retryLimit: 2, retryDelay: 5, retryBackoff: true, expireInSeconds: 600 }
 });
 
 /** Cron schedules of the periodic jobs (run by whichever worker's clock fires first). */
@@ -64,4 +67,7 @@ export interface NotifyVerdictData {
 }
 export interface SendDigestData {
 	digestId: string;
+}
+export interface RenderReportData {
+	reportId: string;
 }

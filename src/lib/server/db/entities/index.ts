@@ -12,13 +12,16 @@ import { RevisionSchema } from './revision';
 import { MarginReportSchema } from './margin-report';
 import { VerdictEventSchema } from './verdict-event';
 import { VerdictDigestSchema } from './verdict-digest';
+import { ReportExportSchema } from './report-export';
 
 /** Every entity the ORM knows; migrations are generated from this list. */
 export const entities = [UserSchema, AuditEventSchema, OneTimeLinkSchema, ApiTokenSchema, SignInAttemptSchema,
 	// registry
 	ProductSchema, LoopClassSchema, RequirementSchema, LoopSchema, DeviationSchema,
 	// revisions and verdicts
-	RevisionSchema, MarginReportSchema, VerdictEventSchema, VerdictDigestSchema];
+	RevisionSchema, MarginReportSchema, VerdictEventSchema, VerdictDigestSchema,
+	// reports
+	ReportExportSchema];
 
 export { UserSchema, ROLES, VERDICT_MAIL_MODES, type Role, type User, type VerdictMailMode } from './user';
 export { AuditEventSchema, type AuditEvent } from './audit-event';
@@ -35,3 +38,4 @@ export { RevisionSchema, REVISION_STATES, type Revision, type RevisionState } fr
 export { MarginReportSchema, type MarginReport } from './margin-report';
 export { VerdictEventSchema, VERDICT_RANK, type VerdictEvent } from './verdict-event';
 export { VerdictDigestSchema, type VerdictDigest } from './verdict-digest';
+export { ReportExportSchema, REPORT_STATES, type ReportExport, type ReportState, type FrozenLoopEvidence } from './report-export';

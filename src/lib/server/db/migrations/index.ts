@@ -4,6 +4,7 @@ import { Migration20261201224031_initial } from './Migration20261201224031_initi
 import { Migration20261201225052_auth } from './Migration20261201225052_auth';
 import { Migration20261201225324_registry } from './Migration20261201225324_registry';
 import { Migration20261201234928_revisions } from './Migration20261201234928_revisions';
+import { Migration20261202032610_reports } from './Migration20261202032610_reports';
 import { Migration20261202033500_digest } from './Migration20261202033500_digest';
 import { Migration20261202033800_dashboard } from './Migration20261202033800_dashboard';
 
@@ -12,6 +13,7 @@ export const migrationsList: MigrationObject[] = [
 	{ name: 'Migration20261201225052_auth', class: Migration20261201225052_auth },
 	{ name: 'Migration20261201225324_registry', class: Migration20261201225324_registry },
 	{ name: 'Migration20261201234928_revisions', class: Migration20261201234928_revisions },
+	{ name: 'Migration20261202032610_reports', class: Migration20261202032610_reports },
 	{ name: 'Migration20261202033500_digest', class: Migration20261202033500_digest },
 	{ name: 'Migration20261202033800_dashboard', class: Migration20261202033800_dashboard },
 ];
