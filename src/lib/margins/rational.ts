@@ -76,7 +76,7 @@ export function rationalAnalysis(loop: CaseLoop): CaseAnalysis {
  * The band reaches well past the closed-loop poles and crossovers; narrow features of |1 + L| sit
  * at lightly damped closed-loop poles, so those get points of their own.
  */
-function sensitivityGrid(
+export function sensitivityGrid(
 	ev: LoopEval,
 	poles: [number, number][],
 	cross: RationalCrossings,
@@ -105,7 +105,7 @@ function sensitivityGrid(
 	return withFeatures(logGrid(lo, hi, PER_DECADE), features, lo, hi);
 }
 
-function evaluate(ev: LoopEval, grid: number[]): GridValues {
+export function evaluate(ev: LoopEval, grid: number[]): GridValues {
 	const re = new Float64Array(grid.length);
 	const im = new Float64Array(grid.length);
 	for (let i = 0; i < grid.length; i++) {
@@ -120,7 +120,7 @@ function evaluate(ev: LoopEval, grid: number[]): GridValues {
  * The algebra is exact, but a grid costs little: a sign change of ln|L| or of Im L (with Re L < 0)
  * between two grid points that no crossover explains is refined by Brent and added.
  */
-function safetyNet(
+export function safetyNet(
 	ev: LoopEval,
 	grid: number[],
 	{ re, im }: GridValues,
