@@ -14,6 +14,7 @@ import { maxAbs, type Poly } from './polynomial';
 import type { ContinuousEval, LoopEval } from './rational-eval';
 import { chebyshevRealRoots } from './chebyshev';
 import { polyRoots } from './roots';
+import { noPositiveRoots, noRootsOnSegment } from './descartes';
 
 /** A point of the frequency axis: f is ω in rad/s (continuous) or θ = ωT in rad (sampled). */
 export interface Crossing {
@@ -23,6 +24,8 @@ export interface Crossing {
 }
 
 const ACCEPT = 1e-9;
+/** The segment [0, SEGMENT] certified root-free by Descartes covers the half circle's u ∈ [0, 2]. */
+const SEGMENT = 2.5;
 const NEAR_REAL = 1e-2;
 
 /**
@@ -32,6 +35,13 @@ const NEAR_REAL = 1e-2;
  */
 function realRootsIn(p: Poly, lo: number, hi: number): number[] {
 	if (p.length < 2 || maxAbs(p) === 0) return [];
+	// no root near the real axis there (Descartes–Obreshkoff): no eigenvalues needed
+	if (
+		hi === Infinity
+			? lo === 0 && noPositiveRoots(p)
+			: lo > -1e-9 && hi < SEGMENT && noRootsOnSegment(p, SEGMENT)
+	)
+		return [];
 	const r = polyRoots(p);
 	const out: number[] = [];
 	for (let i = 0; i < r.re.length; i++) {
