@@ -15,6 +15,7 @@ import type { ContinuousEval, LoopEval } from './rational-eval';
 import { chebyshevRealRoots } from './chebyshev';
 import { polyRoots } from './roots';
 import { noPositiveRoots, noRootsOnSegment } from './descartes';
+import { hypot } from './hypot';
 
 /** A point of the frequency axis: f is ω in rad/s (continuous) or θ = ωT in rad (sampled). */
 export interface Crossing {
@@ -259,7 +260,7 @@ export function sampledCrossings(ev: LoopEval, forms: SampledLoopForms): Rationa
 	// a scale-free yardstick: |L| far below its value at θ = π/2 is a zero on the circle that
 	// rounding moved off it (a Tustin zero at z = −1), not a phase crossover
 	ev.at(Math.PI / 2);
-	const deep = 1e-12 * Math.hypot(ev.re, ev.im);
+	const deep = 1e-12 * hypot(ev.re, ev.im);
 	// |L| is even about θ = π, so Newton cannot polish a crossover sitting exactly there: test it directly
 	ev.at(Math.PI);
 	const nyquist: Crossing = { f: Math.PI, re: ev.re, im: 0 };
@@ -270,7 +271,7 @@ export function sampledCrossings(ev: LoopEval, forms: SampledLoopForms): Rationa
 	const gainSet = gainX.filter((c) => Math.PI - c.f > 1e-7);
 	if (nyquistGain || gainX.length > gainSet.length) gainSet.push(nyquist);
 	const phase = confirm(ev, phaseT, phaseResidual, true).filter(
-		(c) => Math.PI - c.f > 1e-7 && Math.hypot(c.re, c.im) > deep
+		(c) => Math.PI - c.f > 1e-7 && hypot(c.re, c.im) > deep
 	);
 	const l0 = ev.atZero();
 	if (Number.isFinite(l0) && l0 < 0) phase.unshift({ f: 0, re: l0, im: 0 });

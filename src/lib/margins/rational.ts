@@ -21,6 +21,7 @@ import { loopForms } from './sampled-forms';
 import { SampledEval } from './sampled-eval';
 import { sensitivity, type EndPoint, type GridValues } from './sensitivity';
 import { continuousClosedLoop, sampledClosedLoop, type ClosedLoop } from './stability';
+import { hypot } from './hypot';
 
 const PER_DECADE = 12;
 
@@ -90,10 +91,10 @@ export function sensitivityGrid(
 			const decay = 0.5 * Math.log(a * a + b * b);
 			const centre = Math.abs(Math.atan2(b, a));
 			features.push({ centre, decay });
-			freqs.push(Math.hypot(centre, decay));
+			freqs.push(hypot(centre, decay));
 		} else {
 			features.push({ centre: Math.abs(b), decay: a });
-			freqs.push(Math.hypot(a, b));
+			freqs.push(hypot(a, b));
 		}
 	}
 	for (const c of [...cross.gain, ...cross.phase]) freqs.push(c.f);
@@ -134,7 +135,7 @@ export function safetyNet(
 	let deep = 0;
 	if (ev.sampled) {
 		ev.at(Math.PI / 2);
-		deep = 1e-12 * Math.hypot(ev.re, ev.im);
+		deep = 1e-12 * hypot(ev.re, ev.im);
 	}
 	const inside = (list: Crossing[], a: number, b: number) =>
 		list.filter((c) => c.f > a && c.f <= b).length;
@@ -145,7 +146,7 @@ export function safetyNet(
 			const u = brentRoot(
 				(x) => {
 					ev.at(Math.exp(x));
-					return Math.log(Math.hypot(ev.re, ev.im));
+					return Math.log(hypot(ev.re, ev.im));
 				},
 				Math.log(a),
 				Math.log(b)
@@ -159,7 +160,7 @@ export function safetyNet(
 			const u = brentRoot(
 				(x) => {
 					ev.at(Math.exp(x));
-					return ev.im / Math.hypot(ev.re, ev.im);
+					return ev.im / hypot(ev.re, ev.im);
 				},
 				Math.log(a),
 				Math.log(b)
@@ -169,7 +170,7 @@ export function safetyNet(
 				ev.re < 0 &&
 				ev.denRelative > ON_POLE &&
 				ev.numRelative > ON_POLE &&
-				Math.hypot(ev.re, ev.im) > deep
+				hypot(ev.re, ev.im) > deep
 			)
 				added.phase.push({ f: Math.exp(u), re: ev.re, im: ev.im });
 		}
