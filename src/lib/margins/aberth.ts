@@ -2,6 +2,7 @@
  * Aberth–Ehrlich simultaneous root iteration: the fallback when the companion-matrix QR does not
  * converge. Globally convergent in practice and indifferent to the matrix structure that stalls QR.
  */
+import { hypot } from './hypot';
 
 /** Roots of p (ascending, p[n] ≠ 0). Starts from `start` when given (e.g. rough QR roots). */
 export function aberth(
@@ -85,8 +86,8 @@ export function aberth(
 			const wi = bd === 0 ? ri : (ri * br - rr * bi) / bd;
 			re[k] = zr - wr;
 			im[k] = zi - wi;
-			const size = Math.hypot(zr, zi);
-			if (Math.hypot(wr, wi) <= 1e-15 * (size + 1e-300)) done[k] = 1;
+			const size = hypot(zr, zi);
+			if (hypot(wr, wi) <= 1e-15 * (size + 1e-300)) done[k] = 1;
 			else moving++;
 		}
 		if (moving === 0) break;

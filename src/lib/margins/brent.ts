@@ -78,18 +78,33 @@ export function brentMin(
 	b: number,
 	tol = 1e-10
 ): [number, number] {
+	const x = a + 0.3819660112501051 * (b - a);
+	const fx = f(x);
+	return fmin(f, a, b, tol, x, fx, x, fx, x, fx, 0);
+}
+
+/**
+ * Brent's fmin from a given state: x the best point so far, w the second best, v the previous w;
+ * e the step before last (0: start with a golden-section step).
+ */
+function fmin(
+	f: (x: number) => number,
+	a: number,
+	b: number,
+	tol: number,
+	x: number,
+	fx: number,
+	w: number,
+	fw: number,
+	v: number,
+	fv: number,
+	e: number
+): [number, number] {
 	const golden = 0.3819660112501051;
-	let x = a + golden * (b - a);
-	let w = x;
-	let v = x;
-	let fx = f(x);
-	let fw = fx;
-	let fv = fx;
-	let d = 0;
-	let e = 0;
+	let d = e;
 	for (let iter = 0; iter < 100; iter++) {
 		const xm = 0.5 * (a + b);
-		const tol1 = tol * Math.abs(x) + 1e-12;
+		const tol1 = tol * (Math.abs(x) + 1);
 		const tol2 = 2 * tol1;
 		if (Math.abs(x - xm) <= tol2 - 0.5 * (b - a)) break;
 		let parabolic = false;
@@ -129,9 +144,11 @@ export function brentMin(
 }
 
 /**
- * Minimum of a smooth f from a bracketing triple (a, m, b), f(m) ≤ f(a), f(b), by successive
- * parabolic interpolation with bisection as the safeguard. The triple comes from a grid, so a
- * well-resolved minimum costs a handful of evaluations instead of a fresh Brent search.
+ * Minimum of a smooth f from a bracketing triple (a, m, b), f(m) ≤ f(a), f(b): Brent's fmin
+ * started from the triple, so its first step is the parabola through the three points. A
+ * well-resolved grid minimum costs a handful of evaluations instead of a fresh search; the
+ * bracket's far end is pulled in by fmin's tol-sized steps once the parabolic steps get that
+ * small, instead of being bisected towards the minimum.
  */
 export function parabolicMin(
 	f: (x: number) => number,
@@ -143,24 +160,6 @@ export function parabolicMin(
 	fb: number,
 	tol = 1e-10
 ): [number, number] {
-	for (let iter = 0; iter < 40 && b - a > tol * (Math.abs(m) + 1); iter++) {
-		const p = (m - a) * (fm - fb);
-		const q = (m - b) * (fm - fa);
-		const den = 2 * (p - q);
-		let u = den !== 0 ? m - ((m - a) * p - (m - b) * q) / den : NaN;
-		// stay strictly inside and off the middle point, or bisect the larger side
-		const guard = 0.01 * (b - a);
-		if (!(u > a + guard && u < b - guard) || Math.abs(u - m) < 1e-3 * tol)
-			u = m - a > b - m ? 0.5 * (a + m) : 0.5 * (m + b);
-		const fu = f(u);
-		if (fu < fm) {
-			if (u < m) [b, fb] = [m, fm];
-			else [a, fa] = [m, fm];
-			const step = Math.abs(u - m);
-			[m, fm] = [u, fu];
-			if (step <= tol * (Math.abs(m) + 1)) break;
-		} else if (u < m) [a, fa] = [u, fu];
-		else [b, fb] = [u, fu];
-	}
-	return [m, fm];
+	const [w, fw, v, fv] = fa <= fb ? [a, fa, b, fb] : [b, fb, a, fa];
+	return fmin(f, a, b, tol, m, fm, w, fw, v, fv, b - a);
 }

@@ -14,6 +14,8 @@ import { maxAbs, type Poly } from './polynomial';
 import type { ContinuousEval, LoopEval } from './rational-eval';
 import { chebyshevRealRoots } from './chebyshev';
 import { polyRoots } from './roots';
+import { noPositiveRoots, noRootsOnSegment } from './descartes';
+import { hypot } from './hypot';
 
 /** A point of the frequency axis: f is ω in rad/s (continuous) or θ = ωT in rad (sampled). */
 export interface Crossing {
@@ -23,6 +25,8 @@ export interface Crossing {
 }
 
 const ACCEPT = 1e-9;
+/** The segment [0, SEGMENT] certified root-free by Descartes covers the half circle's u ∈ [0, 2]. */
+const SEGMENT = 2.5;
 const NEAR_REAL = 1e-2;
 
 /**
@@ -32,6 +36,13 @@ const NEAR_REAL = 1e-2;
  */
 function realRootsIn(p: Poly, lo: number, hi: number): number[] {
 	if (p.length < 2 || maxAbs(p) === 0) return [];
+	// no root near the real axis there (Descartes–Obreshkoff): no eigenvalues needed
+	if (
+		hi === Infinity
+			? lo === 0 && noPositiveRoots(p)
+			: lo > -1e-9 && hi < SEGMENT && noRootsOnSegment(p, SEGMENT)
+	)
+		return [];
 	const r = polyRoots(p);
 	const out: number[] = [];
 	for (let i = 0; i < r.re.length; i++) {
@@ -249,7 +260,7 @@ export function sampledCrossings(ev: LoopEval, forms: SampledLoopForms): Rationa
 	// a scale-free yardstick: |L| far below its value at θ = π/2 is a zero on the circle that
 	// rounding moved off it (a Tustin zero at z = −1), not a phase crossover
 	ev.at(Math.PI / 2);
-	const deep = 1e-12 * Math.hypot(ev.re, ev.im);
+	const deep = 1e-12 * hypot(ev.re, ev.im);
 	// |L| is even about θ = π, so Newton cannot polish a crossover sitting exactly there: test it directly
 	ev.at(Math.PI);
 	const nyquist: Crossing = { f: Math.PI, re: ev.re, im: 0 };
@@ -260,7 +271,7 @@ export function sampledCrossings(ev: LoopEval, forms: SampledLoopForms): Rationa
 	const gainSet = gainX.filter((c) => Math.PI - c.f > 1e-7);
 	if (nyquistGain || gainX.length > gainSet.length) gainSet.push(nyquist);
 	const phase = confirm(ev, phaseT, phaseResidual, true).filter(
-		(c) => Math.PI - c.f > 1e-7 && Math.hypot(c.re, c.im) > deep
+		(c) => Math.PI - c.f > 1e-7 && hypot(c.re, c.im) > deep
 	);
 	const l0 = ev.atZero();
 	if (Number.isFinite(l0) && l0 < 0) phase.unshift({ f: 0, re: l0, im: 0 });

@@ -10,6 +10,7 @@
  * on the edge. (Up to an earlier version it did not: only a candidate beyond which a root count
  * said "unstable" did, which leaves that edge gain inside the "stable" interval.)
  */
+import { hypot } from './hypot';
 
 export interface GainCandidate {
 	k: number;
@@ -28,7 +29,7 @@ export function gainCandidates(
 ): GainCandidate[] {
 	const out = [...extra];
 	for (const p of phase) {
-		const mag = Math.hypot(p.re, p.im);
+		const mag = hypot(p.re, p.im);
 		if (mag > 0 && Number.isFinite(mag)) out.push({ k: 1 / mag, f: p.f });
 	}
 	return out.sort((a, b) => a.k - b.k);

@@ -2,6 +2,7 @@
  * Frequency grids: log-spaced over a band set by the loop's own features, with extra points where
  * a lightly damped root makes the response change within a fraction of its frequency.
  */
+import { hypot } from './hypot';
 
 export function logGrid(lo: number, hi: number, perDecade: number): number[] {
 	if (!(hi > lo) || !(lo > 0)) return [lo];
@@ -33,7 +34,7 @@ export function withFeatures(
 ): number[] {
 	const add: number[] = [];
 	for (const { centre, decay } of features) {
-		if (!(centre > 0) || Math.abs(decay) >= LIGHT_DAMPING * Math.hypot(centre, decay)) continue;
+		if (!(centre > 0) || Math.abs(decay) >= LIGHT_DAMPING * hypot(centre, decay)) continue;
 		for (const t of OFFSETS) {
 			const f = centre + Math.abs(decay) * t;
 			if (f >= lo && f <= hi) add.push(f);

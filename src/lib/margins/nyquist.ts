@@ -11,6 +11,7 @@
  *    mirror image: by such an arc when poles sit there, else by a short chord through the real axis.
  */
 import type { Crossing } from './crossovers';
+import { hypot } from './hypot';
 
 export interface PhaseCrossing extends Crossing {
 	/** +1 where the phase falls through an odd multiple of 180°, −1 where it rises, 0 tangent. */
@@ -65,6 +66,6 @@ function closureCount(c: Closure, k: number): number {
 export function unstableCount(n: NyquistCount, k: number): number {
 	if (n.neutral > 0 && k * n.neutral >= 1) return Infinity;
 	let z = n.P + 2 * n.interiorArcs + closureCount(n.low, k) + closureCount(n.high, k);
-	for (const c of n.crossings) if (!c.end && k * Math.hypot(c.re, c.im) > 1) z += 2 * c.dir;
+	for (const c of n.crossings) if (!c.end && k * hypot(c.re, c.im) > 1) z += 2 * c.dir;
 	return z;
 }

@@ -4,6 +4,7 @@
  * loops stay in range. Sampled loops are evaluated from their roots instead (sampled-eval.ts).
  */
 import { maxAbs, powerOfTwo, rootCentre, scaleArgument, trim, type Poly } from './polynomial';
+import { hypot } from './hypot';
 
 /** What the crossover search needs of an evaluator, continuous (f = ω) or sampled (f = θ). */
 export interface LoopEval {
@@ -79,7 +80,7 @@ export class ContinuousEval implements LoopEval {
 		}
 		const dd = dr * dr + di * di;
 		this.denRelative = scaleD > 0 ? Math.sqrt(dd) / scaleD : 0;
-		this.numRelative = scaleN > 0 ? Math.hypot(nr, ni) / scaleN : 0;
+		this.numRelative = scaleN > 0 ? hypot(nr, ni) / scaleN : 0;
 		const g = this.gain / dd;
 		this.re = g * (nr * dr + ni * di);
 		this.im = g * (ni * dr - nr * di);

@@ -21,6 +21,7 @@ import { loopForms } from './sampled-forms';
 import { SampledEval } from './sampled-eval';
 import { sensitivity, type EndPoint, type GridValues } from './sensitivity';
 import { continuousClosedLoop, sampledClosedLoop, type ClosedLoop } from './stability';
+import { hypot } from './hypot';
 
 const PER_DECADE = 12;
 
@@ -76,7 +77,7 @@ export function rationalAnalysis(loop: CaseLoop): CaseAnalysis {
  * The band reaches well past the closed-loop poles and crossovers; narrow features of |1 + L| sit
  * at lightly damped closed-loop poles, so those get points of their own.
  */
-function sensitivityGrid(
+export function sensitivityGrid(
 	ev: LoopEval,
 	poles: [number, number][],
 	cross: RationalCrossings,
@@ -90,10 +91,10 @@ function sensitivityGrid(
 			const decay = 0.5 * Math.log(a * a + b * b);
 			const centre = Math.abs(Math.atan2(b, a));
 			features.push({ centre, decay });
-			freqs.push(Math.hypot(centre, decay));
+			freqs.push(hypot(centre, decay));
 		} else {
 			features.push({ centre: Math.abs(b), decay: a });
-			freqs.push(Math.hypot(a, b));
+			freqs.push(hypot(a, b));
 		}
 	}
 	for (const c of [...cross.gain, ...cross.phase]) freqs.push(c.f);
@@ -105,7 +106,7 @@ function sensitivityGrid(
 	return withFeatures(logGrid(lo, hi, PER_DECADE), features, lo, hi);
 }
 
-function evaluate(ev: LoopEval, grid: number[]): GridValues {
+export function evaluate(ev: LoopEval, grid: number[]): GridValues {
 	const re = new Float64Array(grid.length);
 	const im = new Float64Array(grid.length);
 	for (let i = 0; i < grid.length; i++) {
@@ -120,7 +121,7 @@ function evaluate(ev: LoopEval, grid: number[]): GridValues {
  * The algebra is exact, but a grid costs little: a sign change of ln|L| or of Im L (with Re L < 0)
  * between two grid points that no crossover explains is refined by Brent and added.
  */
-function safetyNet(
+export function safetyNet(
 	ev: LoopEval,
 	grid: number[],
 	{ re, im }: GridValues,
@@ -134,7 +135,7 @@ function safetyNet(
 	let deep = 0;
 	if (ev.sampled) {
 		ev.at(Math.PI / 2);
-		deep = 1e-12 * Math.hypot(ev.re, ev.im);
+		deep = 1e-12 * hypot(ev.re, ev.im);
 	}
 	const inside = (list: Crossing[], a: number, b: number) =>
 		list.filter((c) => c.f > a && c.f <= b).length;
@@ -145,7 +146,7 @@ function safetyNet(
 			const u = brentRoot(
 				(x) => {
 					ev.at(Math.exp(x));
-					return Math.log(Math.hypot(ev.re, ev.im));
+					return Math.log(hypot(ev.re, ev.im));
 				},
 				Math.log(a),
 				Math.log(b)
@@ -159,7 +160,7 @@ function safetyNet(
 			const u = brentRoot(
 				(x) => {
 					ev.at(Math.exp(x));
-					return ev.im / Math.hypot(ev.re, ev.im);
+					return ev.im / hypot(ev.re, ev.im);
 				},
 				Math.log(a),
 				Math.log(b)
@@ -169,7 +170,7 @@ function safetyNet(
 				ev.re < 0 &&
 				ev.denRelative > ON_POLE &&
 				ev.numRelative > ON_POLE &&
-				Math.hypot(ev.re, ev.im) > deep
+				hypot(ev.re, ev.im) > deep
 			)
 				added.phase.push({ f: Math.exp(u), re: ev.re, im: ev.im });
 		}

@@ -7,6 +7,7 @@ import { band, logGrid, withFeatures, type Feature } from './grid';
 import type { CaseLoop } from './loop';
 import { arcCrossings, type Closure } from './nyquist';
 import type { LoopResponse } from './response';
+import { hypot } from './hypot';
 
 export interface Sample {
 	f: number;
@@ -47,17 +48,15 @@ export function classifyRoots(resp: LoopResponse): RootClasses {
 		freqs: []
 	};
 	// distance from the boundary, signed: > 0 unstable side
-	const side = ([a, b]: number[]) => (sampled ? Math.hypot(a, b) - 1 : a / (Math.hypot(a, b) || 1));
+	const side = ([a, b]: number[]) => (sampled ? hypot(a, b) - 1 : a / (hypot(a, b) || 1));
 	const onBoundary = (r: number[]) =>
 		(!sampled && r[0] === 0 && r[1] === 0) || Math.abs(side(r)) <= ON_BOUNDARY;
 	const usedZero = new Uint8Array(zeros.length);
 	const freePoles: number[][] = [];
 	for (const p of poles) {
 		// loose: a cancellation carried through a discretisation is only approximately exact
-		const tol = 1e-6 * Math.max(Math.hypot(p[0], p[1]), sampled ? 1 : 1e-300);
-		const j = zeros.findIndex(
-			(z, i) => !usedZero[i] && Math.hypot(z[0] - p[0], z[1] - p[1]) <= tol
-		);
+		const tol = 1e-6 * Math.max(hypot(p[0], p[1]), sampled ? 1 : 1e-300);
+		const j = zeros.findIndex((z, i) => !usedZero[i] && hypot(z[0] - p[0], z[1] - p[1]) <= tol);
 		if (j >= 0) {
 			usedZero[j] = 1;
 			if (onBoundary(p) || side(p) > 0) out.hidden++;
@@ -87,9 +86,9 @@ export function classifyRoots(resp: LoopResponse): RootClasses {
 			if (m === 1 && side(r) > 0) out.unstable++;
 			if (r[1] < 0) continue;
 			const [centre, decay] = sampled
-				? [Math.abs(Math.atan2(r[1], r[0])), Math.log(Math.hypot(r[0], r[1]))]
+				? [Math.abs(Math.atan2(r[1], r[0])), Math.log(hypot(r[0], r[1]))]
 				: [r[1], r[0]];
-			const size = Math.hypot(centre, decay);
+			const size = hypot(centre, decay);
 			if (Number.isFinite(size) && size > 0) {
 				out.features.push({ centre, decay });
 				out.freqs.push(size);
@@ -227,7 +226,7 @@ function integratorsFromSlope(samples: Sample[]): number {
 }
 
 const signOf = (s: Sample, neighbour: Sample | undefined) => {
-	const tiny = Math.abs(s.im) <= 1e-12 * Math.hypot(s.re, s.im);
+	const tiny = Math.abs(s.im) <= 1e-12 * hypot(s.re, s.im);
 	return Math.sign(tiny && neighbour ? neighbour.im : s.im);
 };
 

@@ -25,6 +25,7 @@ import { buildGrid, classifyRoots, closures, type RootClasses, type Sample } fro
 import { LoopResponse } from './response';
 import { withFeatures } from './grid';
 import { sensitivity, type EndPoint } from './sensitivity';
+import { hypot } from './hypot';
 
 export function responseAnalysis(loop: CaseLoop): CaseAnalysis {
 	const resp = new LoopResponse(loop);
@@ -103,10 +104,10 @@ function phaseCrossings(
 	let deep = 0;
 	if (resp.sampled) {
 		resp.at(Math.PI / 2);
-		deep = 1e-12 * Math.hypot(resp.re, resp.im);
+		deep = 1e-12 * hypot(resp.re, resp.im);
 	}
 	const phase = bracketPhase(resp, samples).filter(
-		(c) => resp.zeroDistance(c.f) > ON_POLE && Math.hypot(c.re, c.im) > deep
+		(c) => resp.zeroDistance(c.f) > ON_POLE && hypot(c.re, c.im) > deep
 	);
 	if (rational) addEnds(resp, rational, numW, phase);
 	return phase;

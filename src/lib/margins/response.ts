@@ -9,6 +9,7 @@
 import type { Factor } from './blocks';
 import { polyRoots, wRoots, zRoots, type Roots } from './roots';
 import type { CaseLoop, MeasuredData } from './loop';
+import { hypot } from './hypot';
 
 const LN10_20 = Math.LN10 / 20;
 const RAD = Math.PI / 180;
@@ -93,8 +94,8 @@ export class LoopResponse {
 		const z = this.zeros;
 		for (let i = 0; i < z.re.length; i++) {
 			const d = this.sampled
-				? Math.hypot(Math.cos(f) - z.re[i], Math.sin(f) - z.im[i])
-				: Math.hypot(z.re[i], f - z.im[i]) / Math.max(Math.abs(f), Math.hypot(z.re[i], z.im[i]));
+				? hypot(Math.cos(f) - z.re[i], Math.sin(f) - z.im[i])
+				: hypot(z.re[i], f - z.im[i]) / Math.max(Math.abs(f), hypot(z.re[i], z.im[i]));
 			best = Math.min(best, d);
 		}
 		return best;

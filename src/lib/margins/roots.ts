@@ -6,9 +6,10 @@
  */
 import numeric from 'numeric';
 import { aberth } from './aberth';
-import { balance, hqr } from './hqr';
+import { hqr } from './hqr';
 import { lowOrder, trim, type Poly } from './polynomial';
 import { shiftTo } from './shifted';
+import { hypot } from './hypot';
 
 export interface Roots {
 	re: Float64Array;
@@ -114,14 +115,65 @@ function quadratic(q: Poly, re: Float64Array, im: Float64Array): void {
 	}
 }
 
+/**
+ * The companion matrix of q (1-based, for hqr), balanced. A companion matrix has only its first
+ * row and its subdiagonal off the diagonal, and a diagonal similarity keeps that shape, so the
+ * balancing runs on those 2n − 1 entries: the same sums in the same order, the same powers of
+ * two as `balance` on the full matrix (bit for bit), at O(n) per sweep instead of O(n²).
+ */
 function companion(q: Poly, n: number): Float64Array {
 	const w = n + 1;
+	// top[k] = a[1][k], sub[k] = a[k + 1][k]
+	const top = new Float64Array(w);
+	const sub = new Float64Array(w);
+	for (let k = 1; k <= n; k++) {
+		top[k] = -q[n - k] / q[n];
+		if (k < n) sub[k] = 1;
+	}
+	for (let sweep = 0; sweep < 200; sweep++) {
+		let done = true;
+		for (let i = 1; i <= n; i++) {
+			let c: number;
+			let r = 0;
+			if (i === 1) {
+				c = n > 1 ? Math.abs(sub[1]) : 0;
+				for (let j = 2; j <= n; j++) r += Math.abs(top[j]);
+			} else {
+				c = Math.abs(top[i]) + (i < n ? Math.abs(sub[i]) : 0);
+				r = Math.abs(sub[i - 1]);
+			}
+			if (c === 0 || r === 0) continue;
+			let g = r / 2;
+			let f = 1;
+			const s = c + r;
+			while (c < g && f < 1e150) {
+				f *= 2;
+				c *= 4;
+			}
+			g = r * 2;
+			while (c > g && f > 1e-150) {
+				f /= 2;
+				c /= 4;
+			}
+			if ((c + r) / f < 0.95 * s) {
+				done = false;
+				const gi = 1 / f;
+				// row i by 1/f, column i by f (the diagonal entry keeps its value)
+				if (i === 1) for (let j = 2; j <= n; j++) top[j] *= gi;
+				else {
+					sub[i - 1] *= gi;
+					top[i] *= f;
+				}
+				if (i < n) sub[i] *= f;
+			}
+		}
+		if (done) break;
+	}
 	const a = new Float64Array(w * w);
 	for (let k = 1; k <= n; k++) {
-		a[1 * w + k] = -q[n - k] / q[n];
-		if (k < n) a[(k + 1) * w + k] = 1;
+		a[1 * w + k] = top[k];
+		if (k < n) a[(k + 1) * w + k] = sub[k];
 	}
-	balance(a, n);
 	return a;
 }
 
@@ -161,14 +213,14 @@ export function residual(q: Poly, zr: number, zi: number): number {
 	let pr = 0;
 	let pi = 0;
 	let sc = 0;
-	const az = Math.hypot(zr, zi);
+	const az = hypot(zr, zi);
 	for (let i = q.length - 1; i >= 0; i--) {
 		const t = pr * zr - pi * zi + q[i];
 		pi = pr * zi + pi * zr;
 		pr = t;
 		sc = sc * az + Math.abs(q[i]);
 	}
-	return sc === 0 ? 0 : Math.hypot(pr, pi) / sc;
+	return sc === 0 ? 0 : hypot(pr, pi) / sc;
 }
 
 function newtonStep(q: Poly, zr: number, zi: number): [number, number] {
@@ -230,7 +282,7 @@ function pairConjugates(r: Roots): Roots {
 	const used = new Uint8Array(n);
 	for (let i = 0; i < n; i++) {
 		if (used[i]) continue;
-		const scale = Math.hypot(r.re[i], r.im[i]);
+		const scale = hypot(r.re[i], r.im[i]);
 		if (Math.abs(r.im[i]) <= 1e-12 * scale) {
 			r.im[i] = 0;
 			used[i] = 1;
@@ -240,7 +292,7 @@ function pairConjugates(r: Roots): Roots {
 		let bestD = Infinity;
 		for (let j = i + 1; j < n; j++) {
 			if (used[j]) continue;
-			const d = Math.hypot(r.re[j] - r.re[i], r.im[j] + r.im[i]);
+			const d = hypot(r.re[j] - r.re[i], r.im[j] + r.im[i]);
 			if (d < bestD) [best, bestD] = [j, d];
 		}
 		used[i] = 1;

@@ -28,6 +28,12 @@ export interface Sensitivity {
 
 // squared: smooth at a minimum, where |1 + L| itself has a corner that parabolic steps cannot fit
 const modulusOf = (re: number, im: number) => (1 + re) * (1 + re) + im * im;
+/**
+ * Refinement tolerance in ln f: a deep, narrow dip of |1 + L| (a long delay's spiral, a lightly
+ * damped closed-loop pole) needs its position far below its own width.
+ */
+const REFINE_TOL = 1e-10;
+
 const halfOf = (re: number, im: number) => {
 	const m = (1 + re) * (1 + re) + im * im;
 	return m === 0 ? Infinity : ((1 - re) * (1 - re) + im * im) / (4 * m);
@@ -104,9 +110,10 @@ export function sensitivity(
 							Math.log(grid[i]),
 							sign * vals[i],
 							b,
-							sign * vals[i + 1]
+							sign * vals[i + 1],
+							REFINE_TOL
 						)
-					: brentMin(f, a, b, 1e-10);
+					: brentMin(f, a, b, REFINE_TOL);
 			if (v < best) [best, bestF] = [v, Math.exp(u)];
 		}
 		return [sign * best, bestF];

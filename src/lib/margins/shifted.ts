@@ -12,13 +12,6 @@
  */
 import { trim, type Poly } from './polynomial';
 
-/** Sum of two doubles as a double-double [hi, lo]. */
-function twoSum(a: number, b: number): [number, number] {
-	const s = a + b;
-	const v = s - a;
-	return [s, a - (s - v) + (b - v)];
-}
-
 /**
  * Coefficients of p(c + w) in powers of w (ascending), exact to rounding: repeated synthetic
  * division by (x − c) with the sums carried in double-double. c must be a power of two (or ±1)
@@ -27,14 +20,19 @@ function twoSum(a: number, b: number): [number, number] {
 export function shiftTo(p: Poly, c: number): Poly {
 	const n = p.length;
 	const hi = p.slice();
-	const lo = new Array<number>(n).fill(0);
+	const lo = new Float64Array(n);
 	for (let k = 0; k < n - 1; k++)
 		for (let i = n - 2; i >= k; i--) {
-			const [s, e] = twoSum(hi[i], c * hi[i + 1]);
+			// twoSum(hi[i], c·hi[i + 1]) written out: no pair allocated in the O(n²) loop
+			const a = hi[i];
+			const b = c * hi[i + 1];
+			const s = a + b;
+			const v = s - a;
 			hi[i] = s;
-			lo[i] += e + c * lo[i + 1];
+			lo[i] += a - (s - v) + (b - v) + c * lo[i + 1];
 		}
-	return hi.map((x, i) => x + lo[i]);
+	for (let i = 0; i < n; i++) hi[i] += lo[i];
+	return hi;
 }
 
 const polyMul = (a: Poly, b: Poly): Poly => {
@@ -47,8 +45,17 @@ function accumulate(out: number[], poly: Poly, factor: number, shift: number): v
 	for (let i = 0; i < poly.length; i++) out[i + shift] += factor * poly[i];
 }
 
-/** p_m and q_m as polynomials in u, for m = 0..M. */
+const sumsCache = new Map<number, { p: Poly[]; q: Poly[] }>();
+
+/** p_m and q_m as polynomials in u, for m = 0..M (shared, read-only: they depend on M and c alone). */
 function symmetricSums(M: number, c: 1 | -1): { p: Poly[]; q: Poly[] } {
+	const key = c * (M + 1);
+	let sums = sumsCache.get(key);
+	if (!sums) sumsCache.set(key, (sums = buildSums(M, c)));
+	return sums;
+}
+
+function buildSums(M: number, c: 1 | -1): { p: Poly[]; q: Poly[] } {
 	// x_m = e1·x_(m−1) − e2·x_(m−2) with e1 = −c·u, e2 = u
 	const step = (a: Poly, b: Poly): Poly => {
 		const out = new Array<number>(Math.max(a.length, b.length) + 1).fill(0);

@@ -7,6 +7,7 @@ import { add, scale, trim, type Poly } from './polynomial';
 import { shiftTo } from './shifted';
 import { hornerWithDerivative, type ContinuousEval } from './rational-eval';
 import { polyRoots } from './roots';
+import { hypot } from './hypot';
 
 /** Relative margin inside which a computed pole is taken to be on the boundary. */
 const BOUNDARY = 1e-10;
@@ -23,7 +24,7 @@ export function continuousClosedLoop(ev: ContinuousEval, k: number): ClosedLoop 
 	let unstable = 0;
 	const poles: [number, number][] = [];
 	for (let i = 0; i < r.re.length; i++) {
-		const size = Math.hypot(r.re[i], r.im[i]);
+		const size = hypot(r.re[i], r.im[i]);
 		if (r.re[i] > -BOUNDARY * size || size === 0) unstable++;
 		poles.push([r.re[i] * ev.w0, r.im[i] * ev.w0]);
 	}
@@ -49,12 +50,12 @@ export function sampledClosedLoop(numW: Poly, denW: Poly, gain: number): ClosedL
 		wr = r.re.map((x) => x - 1);
 		wi = r.im;
 		for (let i = 0; i < wr.length; i++)
-			if (Math.hypot(wr[i], wi[i]) < 0.5 / n) [wr[i], wi[i]] = newton(shifted, wr[i], wi[i]);
+			if (hypot(wr[i], wi[i]) < 0.5 / n) [wr[i], wi[i]] = newton(shifted, wr[i], wi[i]);
 	}
 	let unstable = 0;
 	const poles: [number, number][] = [];
 	for (let i = 0; i < wr.length; i++) {
-		const size = Math.hypot(wr[i], wi[i]);
+		const size = hypot(wr[i], wi[i]);
 		if (2 * wr[i] + wr[i] * wr[i] + wi[i] * wi[i] > -BOUNDARY * size || size === 0) unstable++;
 		poles.push([1 + wr[i], wi[i]]);
 	}
@@ -68,7 +69,7 @@ function newton(p: Poly, xr: number, xi: number): [number, number] {
 		if (d === 0) break;
 		const sr = (pr * dr + pi * di) / d;
 		const si = (pi * dr - pr * di) / d;
-		if (!Number.isFinite(sr) || Math.hypot(sr, si) > 0.1 * Math.hypot(xr, xi)) break;
+		if (!Number.isFinite(sr) || hypot(sr, si) > 0.1 * hypot(xr, xi)) break;
 		xr -= sr;
 		xi = xi === 0 ? 0 : xi - si;
 	}
