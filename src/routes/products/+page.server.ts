@@ -28,6 +28,6 @@ export const actions = {
 		} catch (e) {
 			return failForm(form, e);
 		}
-		redirect(303, `/loops?product=${encodeURIComponent(form.data.key)}`);
+		redirect(303, `/?product=${encodeURIComponent(form.data.key)}`);
 	}
 } satisfies Actions;

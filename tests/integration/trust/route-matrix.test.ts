@@ -60,7 +60,7 @@ const NEEDS: Record<string, Need> = {
 	'POST /settings/tokens?/create': 'viewer',
 	'POST /settings/tokens?/revoke': 'viewer',
 	'GET /settings/notifications': 'viewer',
-	'POST /settings/notifications': 'viewer',
+	'POST /settings/notifications': 'lead',
 	'GET /signin': 'anonymous',
 	'POST /signin?/password': 'anonymous',
 	'POST /signin?/sso': 'anonymous',

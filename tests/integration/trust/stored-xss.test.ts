@@ -81,7 +81,7 @@ afterAll(async () => {
 });
 
 describe('stored markup renders as text', () => {
-	it.each(['/loops/{id}', '/loops', `/loops?q=${'xss-l'}`, '/products', '/classes', `/classes/{class}`, '/audit', '/'])('in the page %s', async (template) => {
+	it.each(['/loops/{id}', '/loops/{id}/history', `/?q=${'xss-l'}`, '/products', '/classes', `/classes/{class}`, '/audit', '/'])('in the page %s', async (template) => {
 		const path = template.replace('{id}', loopId).replace('{class}', keys.class);
 		const response = await engineer.request(path);
 		expect(response.status).toBe(200);

@@ -44,6 +44,6 @@ export const actions = {
 			if (e instanceof DomainError) return fail(400, { csv, error: e.message, preview: await previewImport(await forkEm(), user, csv).catch(() => undefined) });
 			throw e;
 		}
-		redirect(303, `/loops?sort=updatedAt&dir=desc&imported=${created}`);
+		redirect(303, `/?sort=updatedAt&dir=desc&imported=${created}`);
 	}
 } satisfies Actions;
