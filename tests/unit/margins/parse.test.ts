@@ -410,12 +410,7 @@ describe('refusals named in the model format, each with its path', () => {
 });
 
 describe('size limits and hostile input', () => {
-	const fast = (fn: () => unknown) => {
-		const t0 = performance.now();
-		fn();
-		return performance.now() - t0;
-	};
-
+	// How long these refusals take is printed by `npm run bench:hostile`, not asserted here.
 	it('a file over the size limit, counted in UTF-8 bytes', () => {
 		const body = JSON.stringify({ format: FORMAT, title: 'x', blocks: [plant] });
 		const pad = ' '.repeat(MAX_MODEL_BYTES - body.length + 1);
@@ -431,22 +426,18 @@ describe('size limits and hostile input', () => {
 		expectIssue(refusal(wide), '', /size limit/);
 	});
 
-	it('deep nesting is refused before JSON.parse, quickly', () => {
+	it('deep nesting is refused before JSON.parse', () => {
 		const deep = '['.repeat(2_000_000) + ']'.repeat(2_000_000);
-		let issue: { message: string; path: string } | undefined;
-		expect(fast(() => (issue = refusal(deep)))).toBeLessThan(1000);
-		expectIssue(issue!, '', /nested deeper than 32 levels/);
+		expectIssue(refusal(deep), '', /nested deeper than 32 levels/);
 	});
 
-	it('10⁶-element arrays and too many blocks, cases, states or roots: clear caps, quickly', () => {
+	it('10⁶-element arrays and too many blocks, cases, states or roots: clear caps', () => {
 		const million = new Array<number>(1_000_000).fill(1);
 		const huge = JSON.stringify({
 			format: FORMAT,
 			blocks: [{ type: 'polynomial', numerator: million, denominator: [1, 1] }]
 		});
-		let issue: { message: string; path: string } | undefined;
-		expect(fast(() => (issue = refusal(huge)))).toBeLessThan(1000);
-		expectIssue(issue!, 'blocks[0].numerator', /more than 61 coefficients/);
+		expectIssue(refusal(huge), 'blocks[0].numerator', /more than 61 coefficients/);
 		const hz = Array.from({ length: 100_001 }, (_, i) => i + 1);
 		expectIssue(
 			refuse({
