@@ -505,6 +505,11 @@ export function bodeGeometry(
 	};
 }
 
+/** Every margin line while there are few; in a crowd (long delays, many crossovers) only the reported ones. */
+export function drawnMarginLines(lines: readonly DimensionLine[], crowd = 8): DimensionLine[] {
+	return lines.length <= crowd ? [...lines] : lines.filter((l) => l.primary);
+}
+
 /**
  * The dimension lines whose labels can be written without overlapping one another: primary lines
  * first, smallest margin first among them. Labels are estimated at `charWidth` px per character, `lineHeight` tall.

@@ -6,6 +6,7 @@
 export {
 	bodeGeometry,
 	criticalLineNear,
+	drawnMarginLines,
 	labelledLines,
 	nearestIndex,
 	valueAt,

@@ -4,6 +4,7 @@ import {
 	bodeGeometry,
 	clipPolyline,
 	criticalLineNear,
+	drawnMarginLines,
 	labelledLines,
 	logTicks,
 	nyquistGeometry,
@@ -195,6 +196,25 @@ describe('bodeGeometry', () => {
 		expect(labelledLines(g.gainMarginLines).map((l) => l.caseName)).toEqual(['b']); // the smaller margin
 		const apart = g.gainMarginLines.map((l, i) => ({ ...l, labelY: l.labelY + i * 40 }));
 		expect(labelledLines(apart)).toHaveLength(2);
+	});
+
+	it('draws every margin line while there are few, only the reported ones in a crowd', () => {
+		const m = model({
+			blocks: [poly([4], [1, 3, 3, 1])],
+			cases: [{ name: 'a' }, { name: 'b', gain: 1.01 }]
+		});
+		const lines = bodeGeometry(sampleResponse(m), computeMargins(m), {
+			width: 600,
+			height: 400
+		}).gainMarginLines;
+		expect(drawnMarginLines(lines)).toHaveLength(lines.length);
+		// a crowd, as a long delay makes: twelve lines of which one is reported
+		const crowd = Array.from({ length: 12 }, (_, i) => ({
+			...lines[0],
+			primary: i === 5,
+			hz: i + 1
+		}));
+		expect(drawnMarginLines(crowd).map((l) => l.hz)).toEqual([6]);
 	});
 
 	it('draws one curve per case, with markers naming their case', () => {

@@ -5,7 +5,14 @@
  */
 import type { Targets } from '../../compliance/criteria';
 import type { CaseResponse, MarginsResult } from '../../margins';
-import { bodeGeometry, nyquistGeometry, type Axis, type Rect } from '../../plots';
+import {
+	bodeGeometry,
+	drawnMarginLines,
+	labelledLines,
+	nyquistGeometry,
+	type Axis,
+	type Rect
+} from '../../plots';
 import { pdfSafe } from '../../reports/words';
 import { put } from './pdf-text';
 
@@ -106,14 +113,21 @@ export function drawBode(
 		caseStroke(doc, c.magnitudePath, c.index);
 		caseStroke(doc, c.phasePath, c.index);
 	});
-	for (const m of [...g.gainMarginLines, ...g.phaseMarginLines]) {
-		doc.path(m.path).lineWidth(0.9).stroke(MARK);
+	// As on the loop page: every margin line while there are few, only the reported ones in a crowd,
+	// and a label only where it does not overwrite another (labels are ~4 pt per character here).
+	const drawn = [...drawnMarginLines(g.gainMarginLines), ...drawnMarginLines(g.phaseMarginLines)];
+	for (const m of drawn)
+		doc
+			.path(m.path)
+			.lineWidth(m.primary ? 0.9 : 0.6)
+			.stroke(MARK);
+	for (const m of labelledLines(drawn, 4, 9)) {
 		const w = 60;
 		const lx = m.labelAnchor === 'end' ? m.labelX - w - 2 : m.labelX + 2;
 		small(doc, m.label, lx, m.labelY - 3, w, m.labelAnchor === 'end' ? 'right' : 'left', MARK);
 	}
-	for (const c of g.gainCrossovers) doc.circle(c.x, c.y, 1.8).fill(MARK);
-	for (const c of g.phaseCrossovers) doc.circle(c.x, c.y, 1.8).fill(MARK);
+	for (const c of [...g.gainCrossovers, ...g.phaseCrossovers].filter((m) => m.inside))
+		doc.circle(c.x, c.y, 1.8).fill(MARK);
 	small(
 		doc,
 		'frequency (Hz)',
