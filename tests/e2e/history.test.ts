@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
 import { baseUrl, launch, snap } from './support/browser';
+import { signInOn } from './support/session';
 
 let browser: Browser;
 beforeAll(async () => {
@@ -48,11 +49,7 @@ async function uploadAndWait(loopId: string, gain: number, note: string): Promis
 async function signIn(width: number): Promise<Page> {
 	const context = await browser.newContext({ viewport: { width, height: 900 } });
 	const page = await context.newPage();
-	await page.goto(baseUrl() + '/signin');
-	await page.getByLabel('E-mail').fill('engineer@headroom.test');
-	await page.getByLabel('Password').fill('headroom-demo');
-	await page.getByRole('button', { name: 'Sign in', exact: true }).click();
-	await page.waitForURL(baseUrl() + '/');
+	await signInOn(page, 'engineer@headroom.test');
 	return page;
 }
 

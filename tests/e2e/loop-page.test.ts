@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
 import { baseUrl, launch, snap } from './support/browser';
+import { signInOn } from './support/session';
 
 let browser: Browser;
 beforeAll(async () => {
@@ -32,13 +33,7 @@ async function settledLoops(): Promise<LoopItem[]> {
 	return items;
 }
 
-async function signIn(page: Page) {
-	await page.goto(baseUrl() + '/signin');
-	await page.getByLabel('E-mail').fill('engineer@headroom.test');
-	await page.getByLabel('Password').fill('headroom-demo');
-	await page.getByRole('button', { name: 'Sign in', exact: true }).click();
-	await page.waitForURL(baseUrl() + '/');
-}
+const signIn = (page: Page) => signInOn(page, 'engineer@headroom.test');
 
 /** A gain (dB) just outside the range the page says meets every target. */
 function outside(words: string): number {

@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser, Page } from 'playwright-core';
+import type { Browser } from 'playwright-core';
 import { baseUrl, launch, snap } from './support/browser';
+import { signInOn } from './support/session';
 
 let browser: Browser;
 
@@ -11,19 +12,11 @@ afterAll(async () => {
 	await browser?.close();
 });
 
-async function signIn(page: Page, email: string) {
-	await page.goto(baseUrl() + '/signin');
-	await page.getByLabel('E-mail').fill(email);
-	await page.getByLabel('Password').fill('headroom-demo');
-	await page.getByRole('button', { name: 'Sign in', exact: true }).click();
-	await page.waitForURL(baseUrl() + '/');
-}
-
 describe('notification settings', () => {
 	it('lets a lead choose the daily digest with the keyboard, and keeps the choice', async () => {
 		const context = await browser.newContext({ viewport: { width: 1280, height: 800 } });
 		const page = await context.newPage();
-		await signIn(page, 'lead@headroom.test');
+		await signInOn(page, 'lead@headroom.test');
 		await page.getByRole('navigation', { name: 'Main' }).first().getByRole('link', { name: 'Notifications' }).click();
 		await page.waitForURL(baseUrl() + '/settings/notifications');
 		const immediate = page.getByRole('radio', { name: 'A message for every change' });
@@ -48,7 +41,7 @@ describe('notification settings', () => {
 	it('tells an engineer that owners always get a message per change, with no choice to make', async () => {
 		const context = await browser.newContext({ viewport: { width: 1280, height: 800 } });
 		const page = await context.newPage();
-		await signIn(page, 'engineer@headroom.test');
+		await signInOn(page, 'engineer@headroom.test');
 		await page.goto(baseUrl() + '/settings/notifications');
 		await expect(page.getByText(/You get a message whenever a loop you own/).isVisible()).resolves.toBe(true);
 		expect(await page.getByRole('radio').count()).toBe(0);

@@ -2,6 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { readFile } from 'node:fs/promises';
 import type { Browser, Page } from 'playwright-core';
 import { baseUrl, launch, snap } from './support/browser';
+import { signInOn } from './support/session';
 
 let browser: Browser;
 beforeAll(async () => {
@@ -10,14 +11,6 @@ beforeAll(async () => {
 afterAll(async () => {
 	await browser?.close();
 });
-
-async function signIn(page: Page, email: string) {
-	await page.goto(baseUrl() + '/signin');
-	await page.getByLabel('E-mail').fill(email);
-	await page.getByLabel('Password').fill('headroom-demo');
-	await page.getByRole('button', { name: 'Sign in', exact: true }).click();
-	await page.waitForURL(baseUrl() + '/');
-}
 
 /** Export from the page and wait, without reloading, until the new row is ready; then download it. */
 async function exportAndDownload(page: Page, format: 'PDF' | 'CSV') {
@@ -55,7 +48,7 @@ describe('compliance reports in the browser', () => {
 		});
 		const page = await context.newPage();
 		// A viewer: audits need reports, so every role may export them.
-		await signIn(page, 'viewer@headroom.test');
+		await signInOn(page, 'viewer@headroom.test');
 		await page
 			.getByRole('navigation', { name: 'Main' })
 			.getByRole('link', { name: 'Reports' })
@@ -93,7 +86,7 @@ describe('compliance reports in the browser', () => {
 			isMobile: true
 		});
 		const page = await context.newPage();
-		await signIn(page, 'engineer@headroom.test');
+		await signInOn(page, 'engineer@headroom.test');
 		await page.goto(baseUrl() + '/reports?product=tarn-s2');
 		await page.getByRole('heading', { name: 'New report' }).waitFor();
 		expect(await page.getByTestId('report-scope').innerText()).toMatch(/product tarn-s2/);
