@@ -12,42 +12,30 @@
  * per second): those ratios move less with the machine's load than the raw figures.
  */
 import { resolve } from 'node:path';
-import { spawn, type ChildProcess } from 'node:child_process';
-import { s3Env } from './lib/s3';
 import { pct, runBench, type BenchServices } from './lib/bench';
+import {
+	benchEnv,
+	openBenchApp,
+	speedLoopModel,
+	startWorker as startWorkerIn,
+	stopWorker,
+	untilComputed
+} from './lib/bench-app';
 
 const root = resolve(import.meta.dirname, '..');
 const UPLOADS = Number(process.env.BENCH_UPLOADS ?? 40);
 const BATCH = Number(process.env.BENCH_BATCH ?? 600);
 const CLASS_LOOPS = Number(process.env.BENCH_CLASS_LOOPS ?? 10_000);
 
-const model = (i: number) =>
-	new TextEncoder().encode(
-		JSON.stringify({
-			format: 'headroom-loop-model/1',
-			// A PI speed loop around a two-mass plant: a realistic order-5 rational loop per upload.
-			blocks: [
-				{ type: 'pid', kp: 0.8 + i * 1e-6, ki: 40 },
-				{ type: 'factored', zeros: [[-20, 300], [-20, -300]], poles: [0, [-15, 420], [-15, -420], -2000], gain: 2.2e6 }
-			]
-		})
-	);
+const model = (i: number) => speedLoopModel(0.8 + i * 1e-6, 40);
+const startWorker = (env: NodeJS.ProcessEnv) => startWorkerIn(root, env);
 
-function startWorker(env: NodeJS.ProcessEnv): Promise<ChildProcess> {
-	const child = spawn(process.execPath, ['--import', 'tsx', 'scripts/worker.ts'], { cwd: root, env, stdio: ['ignore', 'pipe', 'inherit'] });
-	return new Promise((res) => child.stdout!.on('data', (d) => String(d).includes('ready') && res(child)));
-}
-const stopWorker = (c: ChildProcess) => new Promise((res) => (c.once('exit', res), c.kill('SIGTERM')));
-
-async function main({ pg, s3Port, databaseUrl }: BenchServices) {
-	const env: NodeJS.ProcessEnv = { ...process.env, DATABASE_URL: databaseUrl, ...s3Env(s3Port, 'headroom'), NODE_ENV: 'production' };
-	Object.assign(process.env, env);
+async function main(services: BenchServices) {
+	const { pg, s3Port } = services;
+	const env = benchEnv(services);
+	const { orm, em, lead, conn } = await openBenchApp(services.databaseUrl);
 
 	// Imported after the environment is set: the server modules read it on first use.
-	const { MikroORM } = await import('@mikro-orm/postgresql');
-	const { ormOptions } = await import('../src/lib/server/db/options');
-	const { migrate } = await import('../src/lib/server/db/orm');
-	const { ensureBucket } = await import('../src/lib/server/storage/s3');
 	const { uploadRevision } = await import('../src/lib/server/revisions/upload');
 	const { createProduct } = await import('../src/lib/server/registry/products');
 	const { createClass } = await import('../src/lib/server/registry/classes');
@@ -55,21 +43,27 @@ async function main({ pg, s3Port, databaseUrl }: BenchServices) {
 	const { rejudgeClass } = await import('../src/lib/server/verdicts/rejudge');
 	const { computeRevisions } = await import('../src/lib/server/revisions/compute');
 	const { computeMargins, parseModelText } = await import('../src/lib/margins');
-	const { UserSchema } = await import('../src/lib/server/db/entities');
 
-	const orm = await MikroORM.init(ormOptions(env.DATABASE_URL!));
-	await migrate(orm);
-	await ensureBucket();
-	const em = () => orm.em.fork();
-	const e0 = em();
-	const u = e0.create(UserSchema, { email: 'bench-lead@bench.test', name: 'Bench Lead', role: 'lead', active: true, createdAt: new Date() });
-	await e0.flush();
-	const lead = { id: u.id, email: u.email, name: u.name, role: 'lead' as const };
 	await createProduct(em(), lead, { key: 'bench', name: 'Bench drive' });
-	await createClass(em(), lead, { key: 'speed', name: 'Speed loop', targets: { minPhaseMarginDeg: '45', minUpperGainMarginDb: '6' } });
-	const loop = await createLoop(em(), lead, { product: 'bench', class: 'speed', key: 'ax1-speed', name: 'Axis 1 speed', owner: lead.email });
-	const conn = em().getConnection();
-	const verdictOf = async () => (await conn.execute<{ judged_revision_id: string | null }[]>('select judged_revision_id from loop where id = ?', [loop.id]))[0].judged_revision_id;
+	await createClass(em(), lead, {
+		key: 'speed',
+		name: 'Speed loop',
+		targets: { minPhaseMarginDeg: '45', minUpperGainMarginDb: '6' }
+	});
+	const loop = await createLoop(em(), lead, {
+		product: 'bench',
+		class: 'speed',
+		key: 'ax1-speed',
+		name: 'Axis 1 speed',
+		owner: lead.email
+	});
+	const verdictOf = async () =>
+		(
+			await conn.execute<{ judged_revision_id: string | null }[]>(
+				'select judged_revision_id from loop where id = ?',
+				[loop.id]
+			)
+		)[0].judged_revision_id;
 
 	console.log(`\nHeadroom jobs benchmark (PostgreSQL ${pg.port}, S3 fake ${s3Port})\n`);
 
@@ -87,14 +81,20 @@ async function main({ pg, s3Port, databaseUrl }: BenchServices) {
 		t0 = performance.now();
 		for (let i = 0; i < 200; i++) await conn.execute('select 1');
 		const trips = 200 / ((performance.now() - t0) / 1000);
-		console.log(`  reference now: engine ${engine.toFixed(0)} models/s in this process, ${trips.toFixed(0)} database round trips/s`);
+		console.log(
+			`  reference now: engine ${engine.toFixed(0)} models/s in this process, ${trips.toFixed(0)} database round trips/s`
+		);
 		return { engine, trips };
 	}
-	const relative = (perSecond: number, ref: { engine: number }) => `${((perSecond / ref.engine) * 100).toFixed(1)}% of the bare engine rate`;
+	const relative = (perSecond: number, ref: { engine: number }) =>
+		`${((perSecond / ref.engine) * 100).toFixed(1)}% of the bare engine rate`;
 	const printTimings = (title: string, t: Record<string, number>, count: number, unit: string) => {
 		const total = Object.values(t).reduce((a, b) => a + b, 0);
 		console.log(`  ${title}:`);
-		for (const [phase, ms] of Object.entries(t)) console.log(`    ${phase.padEnd(28)} ${(ms / count).toFixed(3).padStart(8)} ms/${unit}  ${((ms / total) * 100).toFixed(0).padStart(3)}%`);
+		for (const [phase, ms] of Object.entries(t))
+			console.log(
+				`    ${phase.padEnd(28)} ${(ms / count).toFixed(3).padStart(8)} ms/${unit}  ${((ms / total) * 100).toFixed(0).padStart(3)}%`
+			);
 	};
 	let worker = await startWorker(env);
 	const latencies: number[] = [];
@@ -104,24 +104,35 @@ async function main({ pg, s3Port, databaseUrl }: BenchServices) {
 		while ((await verdictOf()) !== rev.id) await new Promise((r) => setTimeout(r, 5));
 		latencies.push(performance.now() - t0);
 	}
-	console.log(`upload → verdict visible (${UPLOADS} uploads): median ${pct(latencies, 0.5).toFixed(0)} ms (target ≤ 1000), p95 ${pct(latencies, 0.95).toFixed(0)} ms (target ≤ 2000)`);
+	console.log(
+		`upload → verdict visible (${UPLOADS} uploads): median ${pct(latencies, 0.5).toFixed(0)} ms (target ≤ 1000), p95 ${pct(latencies, 0.95).toFixed(0)} ms (target ≤ 2000)`
+	);
 
 	async function throughput(workers: number, offset: number): Promise<number> {
 		const loops: string[] = [];
 		for (let i = 0; i < 20; i++) {
-			loops.push((await createLoop(em(), lead, { product: 'bench', class: 'speed', key: `t${offset}-${i}`, name: `Throughput ${i}`, owner: lead.email })).id);
+			loops.push(
+				(
+					await createLoop(em(), lead, {
+						product: 'bench',
+						class: 'speed',
+						key: `t${offset}-${i}`,
+						name: `Throughput ${i}`,
+						owner: lead.email
+					})
+				).id
+			);
 		}
 		// Upload with no worker running, then time the backlog being drained.
 		await stopWorker(worker);
-		for (let i = 0; i < BATCH; i++) await uploadRevision(em(), lead, loops[i % loops.length], { bytes: model(offset + i + 1000) });
+		for (let i = 0; i < BATCH; i++)
+			await uploadRevision(em(), lead, loops[i % loops.length], {
+				bytes: model(offset + i + 1000)
+			});
 		const t0 = performance.now();
 		const started = await Promise.all(Array.from({ length: workers }, () => startWorker(env)));
 		const spawnMs = performance.now() - t0;
-		for (;;) {
-			const [{ n }] = await conn.execute<{ n: number }[]>(`select count(*)::int as n from revision where state in ('queued', 'computing')`);
-			if (n === 0) break;
-			await new Promise((r) => setTimeout(r, 20));
-		}
+		await untilComputed(conn, 20);
 		const seconds = (performance.now() - t0 - spawnMs) / 1000;
 		await Promise.all(started.slice(1).map(stopWorker));
 		worker = started[0];
@@ -129,10 +140,14 @@ async function main({ pg, s3Port, databaseUrl }: BenchServices) {
 	}
 	const ref1 = await reference();
 	const one = await throughput(1, 100_000);
-	console.log(`one worker: ${one.toFixed(0)} revisions/s computed and judged (target ≥ 100); ${relative(one, ref1)}`);
+	console.log(
+		`one worker: ${one.toFixed(0)} revisions/s computed and judged (target ≥ 100); ${relative(one, ref1)}`
+	);
 	const ref2 = await reference();
 	const two = await throughput(2, 200_000);
-	console.log(`two workers: ${two.toFixed(0)} revisions/s (${(two / one).toFixed(2)}× one worker; target ≈ 2×, on this 2-core machine the database shares the cores); ${relative(two, ref2)}`);
+	console.log(
+		`two workers: ${two.toFixed(0)} revisions/s (${(two / one).toFixed(2)}× one worker; target ≈ 2×, on this 2-core machine the database shares the cores); ${relative(two, ref2)}`
+	);
 	await stopWorker(worker);
 
 	// Where a revision's time goes: the worker's compute path in this process (no pg-boss), with
@@ -141,27 +156,49 @@ async function main({ pg, s3Port, databaseUrl }: BenchServices) {
 	async function profile(batch: number, offset: number) {
 		const loops: string[] = [];
 		for (let i = 0; i < 20; i++) {
-			loops.push((await createLoop(em(), lead, { product: 'bench', class: 'speed', key: `p${offset}-${i}`, name: `Profile ${i}`, owner: lead.email })).id);
+			loops.push(
+				(
+					await createLoop(em(), lead, {
+						product: 'bench',
+						class: 'speed',
+						key: `p${offset}-${i}`,
+						name: `Profile ${i}`,
+						owner: lead.email
+					})
+				).id
+			);
 		}
 		const ids: string[] = [];
-		for (let i = 0; i < PROFILE; i++) ids.push((await uploadRevision(em(), lead, loops[i % loops.length], { bytes: model(offset + i) })).id);
+		for (let i = 0; i < PROFILE; i++)
+			ids.push(
+				(await uploadRevision(em(), lead, loops[i % loops.length], { bytes: model(offset + i) })).id
+			);
 		const timings: Record<string, number> = {};
 		const t0 = performance.now();
-		for (let i = 0; i < ids.length; i += batch) await computeRevisions(em(), ids.slice(i, i + batch), timings);
+		for (let i = 0; i < ids.length; i += batch)
+			await computeRevisions(em(), ids.slice(i, i + batch), timings);
 		const rate = ids.length / ((performance.now() - t0) / 1000);
 		return { rate, timings };
 	}
 	const refP = await reference();
 	const batched = await profile(25, 300_000);
 	const single = await profile(1, 400_000);
-	console.log(`in-process compute path, ${PROFILE} revisions: batches of 25 ${batched.rate.toFixed(0)}/s (${relative(batched.rate, refP)}), one at a time ${single.rate.toFixed(0)}/s (${relative(single.rate, refP)}); batching ${(batched.rate / single.rate).toFixed(2)}×`);
+	console.log(
+		`in-process compute path, ${PROFILE} revisions: batches of 25 ${batched.rate.toFixed(0)}/s (${relative(batched.rate, refP)}), one at a time ${single.rate.toFixed(0)}/s (${relative(single.rate, refP)}); batching ${(batched.rate / single.rate).toFixed(2)}×`
+	);
 	printTimings('batches of 25, per revision', batched.timings, PROFILE, 'rev');
 	printTimings('one at a time, per revision', single.timings, PROFILE, 'rev');
-	console.log(`  pg-boss fetch/complete and polling: the rest of one worker's time (${(1000 / one).toFixed(2)} ms/rev in the worker vs ${(1000 / batched.rate).toFixed(2)} ms/rev here)`);
+	console.log(
+		`  pg-boss fetch/complete and polling: the rest of one worker's time (${(1000 / one).toFixed(2)} ms/rev in the worker vs ${(1000 / batched.rate).toFixed(2)} ms/rev here)`
+	);
 
 	// 10,000 loops of one class, each with a computed report (copied in SQL), judged in one go.
-	const [{ id: classId }] = await conn.execute<{ id: string }[]>(`select id from loop_class where key = 'speed'`);
-	const [{ id: productId }] = await conn.execute<{ id: string }[]>(`select id from product where key = 'bench'`);
+	const [{ id: classId }] = await conn.execute<{ id: string }[]>(
+		`select id from loop_class where key = 'speed'`
+	);
+	const [{ id: productId }] = await conn.execute<{ id: string }[]>(
+		`select id from product where key = 'bench'`
+	);
 	await conn.execute(
 		`insert into loop (id, product_id, loop_class_id, key, name, owner_id, tags, note, verdict)
 		 select gen_random_uuid(), ?, ?, 'bulk-' || g, 'Bulk ' || g, ?, '{}', '', 'empty' from generate_series(1, ?) g`,
@@ -175,19 +212,28 @@ async function main({ pg, s3Port, databaseUrl }: BenchServices) {
 		 insert into margin_report (revision_id, engine_version, result, compute_ms) select rev.id, 'bench', src.result, 0 from rev, src`,
 		[loop.id, lead.id]
 	);
-	const [{ n: classSize }] = await conn.execute<{ n: number }[]>('select count(*)::int as n from loop where loop_class_id = ?', [classId]);
+	const [{ n: classSize }] = await conn.execute<{ n: number }[]>(
+		'select count(*)::int as n from loop where loop_class_id = ?',
+		[classId]
+	);
 	// Judged once against the targets in force, then a tighter target version makes every loop
 	// worse: the measured re-judge stores 10,000 changes and enqueues their mails, as in real life.
 	const { setRequirement } = await import('../src/lib/server/registry/requirements');
 	await rejudgeClass(em(), classId, 'requirement');
-	await setRequirement(em(), lead, 'speed', { minPhaseMarginDeg: '89', minUpperGainMarginDb: '6', reason: 'bench: tighter phase margin' });
+	await setRequirement(em(), lead, 'speed', {
+		minPhaseMarginDeg: '89',
+		minUpperGainMarginDb: '6',
+		reason: 'bench: tighter phase margin'
+	});
 	const refJ = await reference();
 	const judgeTimings: Record<string, number> = {};
 	const t0 = performance.now();
 	// The job's own function: every loop judged, changes stored, their mails enqueued, one transaction.
 	const changed = await rejudgeClass(em(), classId, 'requirement', judgeTimings);
 	const judgeS = (performance.now() - t0) / 1000;
-	console.log(`re-judge a class of ${classSize} loops: ${judgeS.toFixed(2)} s (target ≤ 5 s; ${changed.length} verdicts changed, ${changed.filter((c) => c.worse).length} mails enqueued); ${(judgeS * refJ.engine).toFixed(0)} engine-model times`);
+	console.log(
+		`re-judge a class of ${classSize} loops: ${judgeS.toFixed(2)} s (target ≤ 5 s; ${changed.length} verdicts changed, ${changed.filter((c) => c.worse).length} mails enqueued); ${(judgeS * refJ.engine).toFixed(0)} engine-model times`
+	);
 	printTimings('re-judge phases, per 1000 loops', judgeTimings, classSize / 1000, '1000');
 	await orm.close(true);
 }

@@ -7,106 +7,53 @@
  */
 import { cpus, loadavg } from 'node:os';
 import { resolve } from 'node:path';
-import { spawn, type ChildProcess } from 'node:child_process';
-import { s3Env } from './lib/s3';
 import { runBench, type BenchServices } from './lib/bench';
+import {
+	benchEnv,
+	openBenchApp,
+	speedLoopModel,
+	startWorker,
+	stopWorker,
+	untilComputed
+} from './lib/bench-app';
 
 const root = resolve(import.meta.dirname, '..');
 const LOOPS = Number(process.env.BENCH_REPORT_LOOPS ?? 200);
 const RUNS = Number(process.env.BENCH_REPORT_RUNS ?? 3);
 
-// A PI speed loop around a two-mass plant, a slightly different gain per loop (every model is a
-// distinct revision); phase margin ≈ 42°, short of the 60° the class asks for.
-const model = (i: number) =>
-	new TextEncoder().encode(
-		JSON.stringify({
-			format: 'headroom-loop-model/1',
-			blocks: [
-				{ type: 'pid', kp: 2 + i * 1e-3, ki: 400 },
-				{
-					type: 'factored',
-					zeros: [
-						[-20, 300],
-						[-20, -300]
-					],
-					poles: [0, [-15, 420], [-15, -420], -2000],
-					gain: 2.2e6
-				}
-			]
-		})
-	);
+// A slightly different gain per loop (every model is a distinct revision); phase margin ≈ 42°,
+// short of the 60° the class asks for.
+const model = (i: number) => speedLoopModel(2 + i * 1e-3, 400);
 
 /** The worker's own account of each render: collect, models (download + sample), render, store. */
 const phases: string[] = [];
-
-function startWorker(env: NodeJS.ProcessEnv): Promise<ChildProcess> {
-	const child = spawn(process.execPath, ['--import', 'tsx', 'scripts/worker.ts'], {
-		cwd: root,
-		env,
-		stdio: ['ignore', 'pipe', 'inherit']
-	});
-	child.stdout!.on('data', (d) =>
-		phases.push(
-			...String(d)
-				.split('\n')
-				.filter((l) => l.startsWith('[reports]'))
-		)
-	);
-	return new Promise((res) =>
-		child.stdout!.on('data', (d) => String(d).includes('ready') && res(child))
-	);
-}
-const stopWorker = (c: ChildProcess) =>
-	new Promise((res) => (c.once('exit', res), c.kill('SIGTERM')));
+const collectPhases = (chunk: string) =>
+	phases.push(...chunk.split('\n').filter((l) => l.startsWith('[reports]')));
 const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
 
-async function main({ pg, s3Port, databaseUrl }: BenchServices) {
-	const env: NodeJS.ProcessEnv = {
-		...process.env,
-		DATABASE_URL: databaseUrl,
-		...s3Env(s3Port, 'headroom'),
-		NODE_ENV: 'production'
-	};
-	Object.assign(process.env, env);
+async function main(services: BenchServices) {
+	const { pg, s3Port } = services;
+	const env = benchEnv(services);
+	const { orm, em, lead, conn } = await openBenchApp(services.databaseUrl);
 
 	// Imported after the environment is set: the server modules read it on first use.
-	const { MikroORM } = await import('@mikro-orm/postgresql');
-	const { ormOptions } = await import('../src/lib/server/db/options');
-	const { migrate } = await import('../src/lib/server/db/orm');
-	const { ensureBucket } = await import('../src/lib/server/storage/s3');
 	const { uploadRevision } = await import('../src/lib/server/revisions/upload');
 	const { createProduct } = await import('../src/lib/server/registry/products');
 	const { createClass } = await import('../src/lib/server/registry/classes');
 	const { createLoop } = await import('../src/lib/server/registry/loops');
 	const { requestReport } = await import('../src/lib/server/reports/exports');
-	const { UserSchema } = await import('../src/lib/server/db/entities');
 
-	const orm = await MikroORM.init(ormOptions(env.DATABASE_URL!));
-	await migrate(orm);
-	await ensureBucket();
-	const em = () => orm.em.fork();
-	const e0 = em();
-	const u = e0.create(UserSchema, {
-		email: 'bench-lead@bench.test',
-		name: 'Bench Lead',
-		role: 'lead',
-		active: true,
-		createdAt: new Date()
-	});
-	await e0.flush();
-	const lead = { id: u.id, email: u.email, name: u.name, role: 'lead' as const };
 	await createProduct(em(), lead, { key: 'veld-m1', name: 'Veldmark M1 machining centre' });
 	await createClass(em(), lead, {
 		key: 'speed',
 		name: 'Speed loop',
 		targets: { minPhaseMarginDeg: '60', minUpperGainMarginDb: '6' }
 	});
-	const conn = em().getConnection();
 
 	console.log(
 		`\nHeadroom reports benchmark (PostgreSQL ${pg.port}, S3 fake ${s3Port}): ${LOOPS} loops\n`
 	);
-	const worker = await startWorker(env);
+	const worker = await startWorker(root, env, collectPhases);
 	for (let i = 0; i < LOOPS; i++) {
 		const loop = await createLoop(em(), lead, {
 			product: 'veld-m1',
@@ -117,13 +64,7 @@ async function main({ pg, s3Port, databaseUrl }: BenchServices) {
 		});
 		await uploadRevision(em(), lead, loop.id, { fileName: `ax${i}.json`, bytes: model(i) });
 	}
-	for (;;) {
-		const [{ n }] = await conn.execute<{ n: number }[]>(
-			`select count(*)::int as n from revision where state in ('queued', 'computing')`
-		);
-		if (n === 0) break;
-		await new Promise((r) => setTimeout(r, 100));
-	}
+	await untilComputed(conn, 100);
 	const verdicts = await conn.execute<{ verdict: string; n: number }[]>(
 		'select verdict, count(*)::int as n from loop group by verdict order by verdict'
 	);

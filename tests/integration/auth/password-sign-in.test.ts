@@ -1,16 +1,8 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { BUILD_TIMEOUT_MS, startBuiltApp, type BuiltApp } from '../support/built-app';
-import { HttpClient } from '../support/http-client';
-import { appEnv, DEMO_PASSWORD, me, postSignIn, signIn } from './flows';
+import { describe, expect, it } from 'vitest';
+import { DEMO_PASSWORD, me, postSignIn, signIn } from './flows';
+import { useAuthApp } from './support';
 
-let app: BuiltApp;
-
-beforeAll(async () => {
-	app = await startBuiltApp({ prefix: 'auth_password', seed: true, env: appEnv });
-}, BUILD_TIMEOUT_MS);
-afterAll(async () => {
-	await app?.stop();
-});
+const auth = useAuthApp('auth_password');
 
 describe('password sign-in', () => {
 	it.each([
@@ -19,7 +11,7 @@ describe('password sign-in', () => {
 		['lead', ['read', 'upload']],
 		['admin', ['read', 'upload']]
 	])('signs the demo %s in with the role and scopes from our tables', async (role, scopes) => {
-		const client = new HttpClient(app.url);
+		const client = auth.client();
 		await signIn(client, `${role}@headroom.test`);
 		const { status, body } = await me(client);
 		expect(status).toBe(200);
@@ -28,7 +20,7 @@ describe('password sign-in', () => {
 	});
 
 	it('keeps only our user id in the session cookie and sets its flags', async () => {
-		const client = new HttpClient(app.url);
+		const client = auth.client();
 		await signIn(client, 'lead@headroom.test');
 		const cookie = client.cookie('authjs.session-token')!;
 		expect(cookie.attributes).toMatch(/HttpOnly/i);
@@ -43,26 +35,28 @@ describe('password sign-in', () => {
 
 	it('records the time of the last sign-in', async () => {
 		const before = Date.now();
-		await signIn(new HttpClient(app.url), 'engineer@headroom.test');
-		const [row] = await app.orm.em
-			.getConnection()
-			.execute(`select last_sign_in_at from app_user where email = 'engineer@headroom.test'`);
+		await signIn(auth.client(), 'engineer@headroom.test');
+		const [row] = await auth.sql(
+			`select last_sign_in_at from app_user where email = 'engineer@headroom.test'`
+		);
 		expect(new Date(row.last_sign_in_at).getTime()).toBeGreaterThanOrEqual(before - 1000);
 	});
 
 	it('returns to the page asked for, but never to another site', async () => {
-		const client = new HttpClient(app.url);
-		const response = await postSignIn(client, 'viewer@headroom.test', DEMO_PASSWORD, { next: '/settings/tokens' });
+		const client = auth.client();
+		const response = await postSignIn(client, 'viewer@headroom.test', DEMO_PASSWORD, {
+			next: '/settings/tokens'
+		});
 		expect(response.headers.get('location')).toBe('/settings/tokens');
 		for (const next of ['//evil.test/x', 'https://evil.test/', '/\\evil.test']) {
-			const other = new HttpClient(app.url);
+			const other = auth.client();
 			const answer = await postSignIn(other, 'viewer@headroom.test', DEMO_PASSWORD, { next });
 			expect(answer.headers.get('location')).toBe('/');
 		}
 	});
 
 	it('answers a wrong password without echoing it, keeping the e-mail typed', async () => {
-		const client = new HttpClient(app.url);
+		const client = auth.client();
 		const response = await postSignIn(client, 'viewer@headroom.test', 'not-the-password-42');
 		expect(response.status).toBe(400);
 		const html = await response.text();
@@ -73,7 +67,7 @@ describe('password sign-in', () => {
 	});
 
 	it('signs out: the cookie is dropped and the API answers 401', async () => {
-		const client = new HttpClient(app.url);
+		const client = auth.client();
 		await signIn(client, 'viewer@headroom.test');
 		const response = await client.post('/signout', {});
 		expect(response.status).toBe(303);
@@ -83,7 +77,7 @@ describe('password sign-in', () => {
 	});
 
 	it('refuses a sign-in form posted from another origin (SvelteKit CSRF check)', async () => {
-		const client = new HttpClient(app.url);
+		const client = auth.client();
 		const response = await client.post(
 			'/signin?/password',
 			{ email: 'admin@headroom.test', password: DEMO_PASSWORD, next: '/' },
@@ -94,7 +88,7 @@ describe('password sign-in', () => {
 	});
 
 	it('sends pages to /signin with the way back, and API calls a 401 in the contract shape', async () => {
-		const client = new HttpClient(app.url);
+		const client = auth.client();
 		const page = await client.request('/settings/tokens?tab=1');
 		expect(page.status).toBe(303);
 		expect(page.headers.get('location')).toBe('/signin?next=%2Fsettings%2Ftokens%3Ftab%3D1');
@@ -104,7 +98,7 @@ describe('password sign-in', () => {
 	});
 
 	it('answers 403 when the role is not enough', async () => {
-		const client = new HttpClient(app.url);
+		const client = auth.client();
 		await signIn(client, 'lead@headroom.test');
 		const response = await client.request('/users');
 		expect(response.status).toBe(403);
