@@ -3,33 +3,28 @@
  * Svelte, no Node imports. The Svelte components and the PDF reports draw the same path strings.
  * Interface and conventions: README.md beside this file.
  */
+export { type Axis, type Insets } from './axis';
+export { bodeGeometry } from './bode';
+export { drawnMarginLines, labelledLines } from './bode-markers';
 export {
-	bodeGeometry,
-	criticalLineNear,
-	drawnMarginLines,
-	labelledLines,
-	nearestIndex,
-	valueAt,
-	type Axis,
 	type BodeCurve,
 	type BodeGeometry,
 	type BodeOptions,
 	type DimensionLine,
 	type GainCrossoverMarker,
-	type Insets,
 	type PhaseCrossoverMarker,
 	type ReferenceLine
-} from './bode';
+} from './bode-types';
+export { criticalLineNear, nearestIndex, valueAt } from './response';
+export { nyquistGeometry } from './nyquist';
+export { alphaOfDiskGainDb, forbiddenRadius } from './nyquist-forbidden';
 export {
-	alphaOfDiskGainDb,
-	forbiddenRadius,
-	nyquistGeometry,
 	type ForbiddenRegion,
 	type ModulusCircle,
 	type NyquistCurve,
 	type NyquistGeometry,
 	type NyquistOptions
-} from './nyquist';
+} from './nyquist-types';
 export {
 	clipPolyline,
 	polylinesPath,

@@ -18,118 +18,19 @@
  * - All coordinates are pixels in a box of `width` × `height`, origin top left, Im up.
  *
  * Stable interface: the PDF reports draw from it too. Add fields; do not rename or remove.
+ * Types: nyquist-types.ts; the forbidden region: nyquist-forbidden.ts.
  */
 import { scaleLinear } from 'd3-scale';
-import type { Targets } from '../compliance/criteria';
 import type { CaseResponse } from '../margins/sampler';
 import type { MarginsResult } from '../margins/types';
-import { nearestIndex, type Axis, type Insets } from './bode';
-import {
-	arcPoints,
-	clipPolyline,
-	polygonPath,
-	polylinesPath,
-	segmentPath,
-	type Pt,
-	type Rect
-} from './path';
+import type { Axis, Insets } from './axis';
+import { forbiddenRadius, forbiddenRegion } from './nyquist-forbidden';
+import type { ModulusCircle, NyquistCurve, NyquistGeometry, NyquistOptions } from './nyquist-types';
+import { arcPoints, clipPolyline, polylinesPath, segmentPath, type Pt, type Rect } from './path';
+import { nearestIndex } from './response';
 import { formatNumber, pickStep, stepTicks } from './ticks';
 
-export interface NyquistOptions {
-	width: number;
-	height: number;
-	insets?: Partial<Insets>;
-	/** Targets in force: draws the region they forbid. */
-	targets?: Targets | null;
-	/** Also draw the mirror image for negative frequencies (default true). */
-	mirror?: boolean;
-	/** Fix the view: centre (re, im) and half-size in units of L. */
-	center?: [number, number];
-	radius?: number;
-	/** The curve is followed out to this |L| when fitting the view (default 2.5). */
-	fitLimit?: number;
-}
-
-export interface NyquistCurve {
-	name: string;
-	index: number;
-	/** Positive frequencies, 0 → highest. */
-	path: string;
-	/** Negative frequencies (the complex conjugate); "" when `mirror` is off. */
-	mirrorPath: string;
-	/** Small arrowheads along the positive branch, pointing towards rising frequency. */
-	arrowsPath: string;
-}
-
-export interface ModulusCircle {
-	caseName: string;
-	caseIndex: number;
-	/** The modulus margin min |1 + L|. */
-	radius: number;
-	path: string;
-	/** The point of the curve nearest to −1 (at the peak-sensitivity frequency), when drawn. */
-	nearest: { x: number; y: number; hz: number } | null;
-	/** The radius from −1 to `nearest`. */
-	radiusPath: string;
-	worst: boolean;
-	label: string;
-}
-
-export interface ForbiddenRegion {
-	/** |1 + L| < radius: closed polygon, fill it. */
-	disc: { radius: number; path: string; label: string } | null;
-	/** Apollonius disc ruled out by a disk-gain-margin target; closed polygon. */
-	diskMarginDisc: {
-		alpha: number;
-		centre: number;
-		radius: number;
-		path: string;
-		label: string;
-	} | null;
-	/** Stretches of the negative real axis (stroke them thick). */
-	gainSegments: { from: number; to: number; path: string; label: string }[];
-	/** Arc of the unit circle within ±degrees of −1 (stroke it thick). */
-	phaseArc: { degrees: number; path: string; label: string } | null;
-	/** Words for a legend or a text summary, one line per part. */
-	description: string[];
-}
-
-export interface NyquistGeometry {
-	width: number;
-	height: number;
-	frame: Rect;
-	/** Re axis (horizontal) and Im axis (vertical). */
-	x: Axis;
-	y: Axis;
-	toPx: (re: number, im: number) => Pt;
-	fromPx: (x: number, y: number) => Pt;
-	curves: NyquistCurve[];
-	criticalPoint: { x: number; y: number; path: string; label: string };
-	unitCircle: string;
-	/** Re and Im axes through 0, where they cross the frame. */
-	axesPath: string;
-	modulusCircles: ModulusCircle[];
-	forbidden: ForbiddenRegion;
-}
-
 const DEFAULT_INSETS: Insets = { top: 10, right: 14, bottom: 34, left: 50 };
-
-const present = (v: string | null | undefined): v is string =>
-	v !== null && v !== undefined && v !== '';
-const num = (v: string | null | undefined) => (present(v) ? Number(v) : NaN);
-
-/** Disc radius around −1 the targets forbid (0 when they set none). */
-export function forbiddenRadius(targets: Targets | null | undefined): number {
-	const mm = num(targets?.minModulusMargin);
-	const ms = num(targets?.maxPeakSensitivity);
-	return Math.max(mm > 0 ? mm : 0, ms > 0 ? 1 / ms : 0);
-}
-
-/** Balanced disk margin α for a disk gain margin in dB (inverse of 20·log10((2+α)/(2−α))). */
-export function alphaOfDiskGainDb(db: number): number {
-	const g = 10 ** (db / 20);
-	return (2 * (g - 1)) / (g + 1);
-}
 
 function fitWindow(
 	responses: readonly CaseResponse[],
@@ -289,84 +190,6 @@ export function nyquistGeometry(
 		modulusCircles,
 		forbidden: forbiddenRegion(targets, toPx, frame)
 	};
-}
-
-function forbiddenRegion(
-	targets: Targets | null,
-	toPx: (re: number, im: number) => Pt,
-	frame: Rect
-): ForbiddenRegion {
-	const description: string[] = [];
-	const r = forbiddenRadius(targets);
-	let disc: ForbiddenRegion['disc'] = null;
-	if (r > 0) {
-		const label = `|1 + L| below ${formatNumber(r, 3)} (within ${formatNumber(r, 3)} of −1)`;
-		disc = {
-			radius: r,
-			label,
-			path: polygonPath(arcPoints(-1, 0, r, 0, 2 * Math.PI).map(([a, b]) => toPx(a, b)))
-		};
-		description.push(`Forbidden: ${label}.`);
-	}
-	let diskMarginDisc: ForbiddenRegion['diskMarginDisc'] = null;
-	const dgm = num(targets?.minDiskGainMarginDb);
-	if (dgm > 0) {
-		const alpha = alphaOfDiskGainDb(dgm);
-		const q = alpha / 2; // |1 + L| < q·|1 − L|, q < 1
-		const centre = (-1 - q * q) / (1 - q * q);
-		const radius = (2 * q) / (1 - q * q);
-		const label = `disk margin below α = ${formatNumber(alpha, 3)} (disk gain margin ${formatNumber(dgm, 3)} dB)`;
-		diskMarginDisc = {
-			alpha,
-			centre,
-			radius,
-			label,
-			path: polygonPath(arcPoints(centre, 0, radius, 0, 2 * Math.PI).map(([a, b]) => toPx(a, b)))
-		};
-		description.push(`Forbidden: ${label}.`);
-	}
-	const gainSegments: ForbiddenRegion['gainSegments'] = [];
-	const seg = (from: number, to: number, label: string) => {
-		gainSegments.push({
-			from,
-			to,
-			label,
-			path: polylinesPath(clipPolyline([toPx(from, 0), toPx(to, 0)], frame))
-		});
-		description.push(`Forbidden: crossing the negative real axis ${label}.`);
-	};
-	const up = num(targets?.minUpperGainMarginDb);
-	if (up > 0)
-		seg(
-			-1,
-			-(10 ** (-up / 20)),
-			`between −1 and −${formatNumber(10 ** (-up / 20), 3)} (upper gain margin under ${formatNumber(up, 3)} dB)`
-		);
-	const low = num(targets?.minLowerGainMarginDb);
-	if (low > 0)
-		seg(
-			-(10 ** (low / 20)),
-			-1,
-			`between −${formatNumber(10 ** (low / 20), 3)} and −1 (lower gain margin under ${formatNumber(low, 3)} dB)`
-		);
-	let phaseArc: ForbiddenRegion['phaseArc'] = null;
-	const pm = num(targets?.minPhaseMarginDeg);
-	if (pm > 0) {
-		const a = (Math.min(pm, 180) * Math.PI) / 180;
-		const label = `crossing the unit circle within ${formatNumber(pm, 3)}° of −1 (phase margin under ${formatNumber(pm, 3)}°)`;
-		phaseArc = {
-			degrees: pm,
-			label,
-			path: polylinesPath(
-				clipPolyline(
-					arcPoints(0, 0, 1, Math.PI - a, Math.PI + a).map(([p, q]) => toPx(p, q)),
-					frame
-				)
-			)
-		};
-		description.push(`Forbidden: ${label}.`);
-	}
-	return { disc, diskMarginDisc, gainSegments, phaseArc, description };
 }
 
 /** Arrowheads at a few places along the visible curve, pointing along it. */
