@@ -33,13 +33,10 @@ const startWorker = (env: NodeJS.ProcessEnv) => startWorkerIn(root, env);
 async function main(services: BenchServices) {
 	const { pg, s3Port } = services;
 	const env = benchEnv(services);
-	const { orm, em, lead, conn } = await openBenchApp(services.databaseUrl);
+	const { orm, em, lead, conn, createProduct, createClass, createLoop, uploadRevision } =
+		await openBenchApp(services.databaseUrl);
 
 	// Imported after the environment is set: the server modules read it on first use.
-	const { uploadRevision } = await import('../src/lib/server/revisions/upload');
-	const { createProduct } = await import('../src/lib/server/registry/products');
-	const { createClass } = await import('../src/lib/server/registry/classes');
-	const { createLoop } = await import('../src/lib/server/registry/loops');
 	const { rejudgeClass } = await import('../src/lib/server/verdicts/rejudge');
 	const { computeRevisions } = await import('../src/lib/server/revisions/compute');
 	const { computeMargins, parseModelText } = await import('../src/lib/margins');
@@ -64,6 +61,22 @@ async function main(services: BenchServices) {
 				[loop.id]
 			)
 		)[0].judged_revision_id;
+
+	/** 20 loops of the speed class, keys `<prefix>-<i>`, to spread a backlog over. */
+	async function speedLoops(prefix: string, name: string): Promise<string[]> {
+		const ids: string[] = [];
+		for (let i = 0; i < 20; i++) {
+			const loop = await createLoop(em(), lead, {
+				product: 'bench',
+				class: 'speed',
+				key: `${prefix}-${i}`,
+				name: `${name} ${i}`,
+				owner: lead.email
+			});
+			ids.push(loop.id);
+		}
+		return ids;
+	}
 
 	console.log(`\nHeadroom jobs benchmark (PostgreSQL ${pg.port}, S3 fake ${s3Port})\n`);
 
@@ -109,20 +122,7 @@ async function main(services: BenchServices) {
 	);
 
 	async function throughput(workers: number, offset: number): Promise<number> {
-		const loops: string[] = [];
-		for (let i = 0; i < 20; i++) {
-			loops.push(
-				(
-					await createLoop(em(), lead, {
-						product: 'bench',
-						class: 'speed',
-						key: `t${offset}-${i}`,
-						name: `Throughput ${i}`,
-						owner: lead.email
-					})
-				).id
-			);
-		}
+		const loops = await speedLoops(`t${offset}`, 'Throughput');
 		// Upload with no worker running, then time the backlog being drained.
 		await stopWorker(worker);
 		for (let i = 0; i < BATCH; i++)
@@ -154,20 +154,7 @@ async function main(services: BenchServices) {
 	// the worker's batch size and one revision at a time, on the same kind of backlog.
 	const PROFILE = Number(process.env.BENCH_PROFILE ?? 200);
 	async function profile(batch: number, offset: number) {
-		const loops: string[] = [];
-		for (let i = 0; i < 20; i++) {
-			loops.push(
-				(
-					await createLoop(em(), lead, {
-						product: 'bench',
-						class: 'speed',
-						key: `p${offset}-${i}`,
-						name: `Profile ${i}`,
-						owner: lead.email
-					})
-				).id
-			);
-		}
+		const loops = await speedLoops(`p${offset}`, 'Profile');
 		const ids: string[] = [];
 		for (let i = 0; i < PROFILE; i++)
 			ids.push(

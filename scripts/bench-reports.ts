@@ -34,13 +34,10 @@ const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.len
 async function main(services: BenchServices) {
 	const { pg, s3Port } = services;
 	const env = benchEnv(services);
-	const { orm, em, lead, conn } = await openBenchApp(services.databaseUrl);
+	const { orm, em, lead, conn, createProduct, createClass, createLoop, uploadRevision } =
+		await openBenchApp(services.databaseUrl);
 
 	// Imported after the environment is set: the server modules read it on first use.
-	const { uploadRevision } = await import('../src/lib/server/revisions/upload');
-	const { createProduct } = await import('../src/lib/server/registry/products');
-	const { createClass } = await import('../src/lib/server/registry/classes');
-	const { createLoop } = await import('../src/lib/server/registry/loops');
 	const { requestReport } = await import('../src/lib/server/reports/exports');
 
 	await createProduct(em(), lead, { key: 'veld-m1', name: 'Veldmark M1 machining centre' });

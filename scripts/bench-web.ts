@@ -16,6 +16,7 @@ import { s3Env } from './lib/s3';
 import { freePort, HOST } from './lib/ports';
 import { randomSecret } from './lib/secrets';
 import { pct, runBench, type BenchServices } from './lib/bench';
+import { createBenchLead } from './lib/bench-app';
 import { appEnv, appProcess, override } from './lib/app';
 import { buildIfStale } from './lib/build';
 import { waitForHttp } from './lib/wait';
@@ -69,10 +70,22 @@ function templates(n = 500) {
 function filterMixes(): [string, string][] {
 	const since = new Date(Date.now() - 14 * 86_400_000).toISOString().slice(0, 10);
 	return [
-		['non-compliant speed, by PM', '/api/loops?verdict=noncompliant&class=speed&sort=phaseMargin&dir=asc&pageSize=50'],
-		['one product short on GM, by shortfall', '/api/loops?product=tarn-af40&failing=upperGainMargin&sort=shortfall&dir=desc&pageSize=50'],
-		['changed in 14 days, by update', `/api/loops?changedSince=${since}&sort=updatedAt&dir=desc&pageSize=50`],
-		['owner + tag + text, by modulus', '/api/loops?owner=engineer07%40bench.test&tag=rig-b&q=ax0&sort=modulusMargin&pageSize=50'],
+		[
+			'non-compliant speed, by PM',
+			'/api/loops?verdict=noncompliant&class=speed&sort=phaseMargin&dir=asc&pageSize=50'
+		],
+		[
+			'one product short on GM, by shortfall',
+			'/api/loops?product=tarn-af40&failing=upperGainMargin&sort=shortfall&dir=desc&pageSize=50'
+		],
+		[
+			'changed in 14 days, by update',
+			`/api/loops?changedSince=${since}&sort=updatedAt&dir=desc&pageSize=50`
+		],
+		[
+			'owner + tag + text, by modulus',
+			'/api/loops?owner=engineer07%40bench.test&tag=rig-b&q=ax0&sort=modulusMargin&pageSize=50'
+		],
 		['all loops, page 120, by delay', '/api/loops?sort=delayMargin&dir=desc&page=120&pageSize=50']
 	];
 }
@@ -80,7 +93,6 @@ function filterMixes(): [string, string][] {
 async function seed(env: NodeJS.ProcessEnv) {
 	const { MikroORM } = await import('@mikro-orm/postgresql');
 	const { ormOptions } = await import('../src/lib/server/db/options');
-	const { UserSchema } = await import('../src/lib/server/db/entities');
 	const { hashPassword } = await import('../src/lib/server/auth/passwords');
 	const { createToken } = await import('../src/lib/server/auth/tokens');
 	const { createProduct } = await import('../src/lib/server/registry/products');
@@ -89,26 +101,33 @@ async function seed(env: NodeJS.ProcessEnv) {
 
 	const orm = await MikroORM.init(ormOptions(env.DATABASE_URL!));
 	const em = () => orm.em.fork();
-	const e0 = em();
-	const u = e0.create(UserSchema, {
-		email: 'bench-lead@bench.test',
-		name: 'Bench Lead',
-		role: 'lead',
-		active: true,
-		passwordHash: await hashPassword(PASSWORD),
-		createdAt: new Date()
-	});
-	await e0.flush();
-	const lead = { id: u.id, email: u.email, name: u.name, role: 'lead' as const };
+	const lead = await createBenchLead(em(), await hashPassword(PASSWORD));
 	const { value: token } = await createToken(em(), lead, { name: 'bench', scopes: ['read'] });
 	const products = ['s2', 'sp7', 'af40', 'm1', 'h3', 'k9', 'r5', 'x2'].map((k) => `tarn-${k}`);
-	for (const key of products) await createProduct(em(), lead, { key, name: `Tarn ${key.slice(5).toUpperCase()}` });
+	for (const key of products)
+		await createProduct(em(), lead, { key, name: `Tarn ${key.slice(5).toUpperCase()}` });
 	const classes: [string, string, Record<string, string>][] = [
-		['current', 'Current loop', { minUpperGainMarginDb: '8', minPhaseMarginDeg: '50', minModulusMargin: '0.5' }],
-		['speed', 'Speed loop', { minUpperGainMarginDb: '6', minPhaseMarginDeg: '45', maxPeakSensitivity: '2' }],
-		['position', 'Position loop', { minUpperGainMarginDb: '6', minPhaseMarginDeg: '50', minDelayMarginSeconds: '0.004' }],
+		[
+			'current',
+			'Current loop',
+			{ minUpperGainMarginDb: '8', minPhaseMarginDeg: '50', minModulusMargin: '0.5' }
+		],
+		[
+			'speed',
+			'Speed loop',
+			{ minUpperGainMarginDb: '6', minPhaseMarginDeg: '45', maxPeakSensitivity: '2' }
+		],
+		[
+			'position',
+			'Position loop',
+			{ minUpperGainMarginDb: '6', minPhaseMarginDeg: '50', minDelayMarginSeconds: '0.004' }
+		],
 		['dc-link', 'DC-link voltage loop', { minUpperGainMarginDb: '6', minPhaseMarginDeg: '45' }],
-		['pll', 'Grid PLL', { minUpperGainMarginDb: '6', minPhaseMarginDeg: '45', minModulusMargin: '0.45' }],
+		[
+			'pll',
+			'Grid PLL',
+			{ minUpperGainMarginDb: '6', minPhaseMarginDeg: '45', minModulusMargin: '0.45' }
+		],
 		['thermal', 'Temperature loop', { minUpperGainMarginDb: '4.6', minPhaseMarginDeg: '30' }]
 	];
 	for (const [key, name, targets] of classes) await createClass(em(), lead, { key, name, targets });
@@ -133,9 +152,10 @@ async function seed(env: NodeJS.ProcessEnv) {
 		[LOOPS]
 	);
 	await conn.execute('create table bench_template (i int primary key, result jsonb not null)');
-	await conn.execute(`insert into bench_template select (e->>'i')::int, e->'r' from jsonb_array_elements(?::jsonb) e`, [
-		JSON.stringify(templates().map((r, i) => ({ i, r })))
-	]);
+	await conn.execute(
+		`insert into bench_template select (e->>'i')::int, e->'r' from jsonb_array_elements(?::jsonb) e`,
+		[JSON.stringify(templates().map((r, i) => ({ i, r })))]
+	);
 	// PER_LOOP computed revisions per loop, about nine days apart, each with its margin report.
 	await conn.execute(
 		`insert into revision (id, loop_id, number, state, object_key, file_name, size_bytes, sha256, uploaded_by_id, uploaded_at, computed_at)
@@ -163,13 +183,17 @@ async function seed(env: NodeJS.ProcessEnv) {
 	await em().transactional((tx) => judgeLoops(tx, ids, 'reconcile'));
 	const judged = performance.now() - t1;
 	// Verdicts that changed over the last quarter, for `changedSince`.
-	await conn.execute(`update loop set verdict_changed_at = now() - (abs(hashtext(id::text || 'v')) % 90) * interval '1 day'`);
+	await conn.execute(
+		`update loop set verdict_changed_at = now() - (abs(hashtext(id::text || 'v')) % 90) * interval '1 day'`
+	);
 	await conn.execute('vacuum analyze');
 	const [counts] = await conn.execute<{ revisions: number; verdicts: string }[]>(
 		`select (select count(*)::int from revision) as revisions,
 		        (select string_agg(verdict || ' ' || n, ', ' order by n desc) from (select verdict, count(*) n from loop group by verdict) v) as verdicts`
 	);
-	console.log(`seeded ${ids.length} loops, ${counts.revisions} revisions in ${(seeded / 1000).toFixed(1)} s; judged in ${(judged / 1000).toFixed(1)} s (${counts.verdicts})`);
+	console.log(
+		`seeded ${ids.length} loops, ${counts.revisions} revisions in ${(seeded / 1000).toFixed(1)} s; judged in ${(judged / 1000).toFixed(1)} s (${counts.verdicts})`
+	);
 	// The database's own share of each mix, without HTTP, auth or contention from the load.
 	const { listQuery, loopFiltersFrom } = await import('../src/lib/server/registry/loops');
 	const { pagingFrom, offsetOf } = await import('../src/lib/server/registry/common');
@@ -180,7 +204,10 @@ async function seed(env: NodeJS.ProcessEnv) {
 		const q = listQuery(loopFiltersFrom(params), paging.pageSize, offsetOf(paging));
 		const times: number[] = [];
 		for (let i = 0; i < 5; i++) {
-			const [row] = await conn.execute<{ 'QUERY PLAN': [{ 'Execution Time': number }] }[]>(`explain (analyze, format json) ${q.sql}`, q.params);
+			const [row] = await conn.execute<{ 'QUERY PLAN': [{ 'Execution Time': number }] }[]>(
+				`explain (analyze, format json) ${q.sql}`,
+				q.params
+			);
 			times.push(row['QUERY PLAN'][0]['Execution Time']);
 		}
 		console.log(`  ${name.padEnd(38)} ${ms(pct(times, 0.5))}`);
@@ -202,7 +229,8 @@ async function signIn(origin: string, email: string): Promise<string> {
 		.getSetCookie()
 		.map((c) => c.split(';')[0])
 		.find((c) => c.startsWith('authjs.session-token='));
-	if (res.status !== 303 || !cookie) throw new Error(`sign-in failed: ${res.status} ${await res.text()}`);
+	if (res.status !== 303 || !cookie)
+		throw new Error(`sign-in failed: ${res.status} ${await res.text()}`);
 	return cookie;
 }
 
@@ -210,7 +238,12 @@ async function loadMix(origin: string, token: string, name: string, path: string
 	const times: number[] = [];
 	const result = await new Promise<autocannon.Result>((done, fail) => {
 		const instance = autocannon(
-			{ url: origin + path, connections: CONNECTIONS, duration: SECONDS, headers: { authorization: `Bearer ${token}`, accept: 'application/json' } },
+			{
+				url: origin + path,
+				connections: CONNECTIONS,
+				duration: SECONDS,
+				headers: { authorization: `Bearer ${token}`, accept: 'application/json' }
+			},
 			(err, res) => (err ? fail(err) : done(res))
 		);
 		// Every response's time, for percentiles autocannon does not report (p95).
@@ -230,11 +263,15 @@ async function renders(origin: string, cookie: string, path: string) {
 	const ttfb: number[] = [];
 	for (let i = 0; i < RENDERS; i++) {
 		const t0 = performance.now();
-		const res = await fetch(origin + path, { headers: { cookie, accept: 'text/html' }, redirect: 'manual' });
+		const res = await fetch(origin + path, {
+			headers: { cookie, accept: 'text/html' },
+			redirect: 'manual'
+		});
 		ttfb.push(performance.now() - t0);
 		if (res.status !== 200) throw new Error(`${path} answered ${res.status}`);
 		const html = await res.text();
-		if (!html.includes('data-testid="loop-table"')) throw new Error(`${path} did not render the loop table`);
+		if (!html.includes('data-testid="loop-table"'))
+			throw new Error(`${path} did not render the loop table`);
 		const dur = /dashboard;[^,]*dur=([\d.]+)/.exec(res.headers.get('server-timing') ?? '')?.[1];
 		if (dur) server.push(Number(dur));
 	}
@@ -262,24 +299,37 @@ async function main({ supervisor, pg, s3Port, databaseUrl }: BenchServices) {
 	Object.assign(process.env, { ...s3Env(s3Port, 'headroom'), DATABASE_URL: env.DATABASE_URL });
 	await buildIfStale(supervisor, root, process.env, override('build'));
 	await supervisor.runOrThrow(appProcess(root, 'migrate', env));
-	console.log(`\nHeadroom web benchmark (PostgreSQL ${pg.port}, S3 fake ${s3Port}, web ${webPort})`);
+	console.log(
+		`\nHeadroom web benchmark (PostgreSQL ${pg.port}, S3 fake ${s3Port}, web ${webPort})`
+	);
 	const { token, email } = await seed(env);
 	const web = supervisor.start(appProcess(root, 'web', env));
 	const origin = `http://${HOST}:${webPort}`;
 	await waitForHttp('the web server', `${origin}/api/health`, { child: web, timeoutMs: 90_000 });
 	const cookie = await signIn(origin, email);
 	// Warm up: the first requests load lazily imported chunks and fill the connection pool.
-	for (let i = 0; i < 20; i++) await (await fetch(`${origin}/api/loops?pageSize=5`, { headers: { authorization: `Bearer ${token}` } })).text();
+	for (let i = 0; i < 20; i++)
+		await (
+			await fetch(`${origin}/api/loops?pageSize=5`, {
+				headers: { authorization: `Bearer ${token}` }
+			})
+		).text();
 	for (let i = 0; i < 5; i++) await (await fetch(`${origin}/`, { headers: { cookie } })).text();
 
 	const mixes = filterMixes();
-	console.log(`\nGET /api/loops, ${CONNECTIONS} connections, ${SECONDS} s per mix (target p95 ≤ 50 ms):`);
+	console.log(
+		`\nGET /api/loops, ${CONNECTIONS} connections, ${SECONDS} s per mix (target p95 ≤ 50 ms):`
+	);
 	const runs = [];
 	for (const [name, path] of mixes) runs.push(await loadMix(origin, token, name, path));
 	const worst = Math.max(...runs.map((r) => r.p95));
-	console.log(`  worst p95 over the mixes: ${ms(worst)} (${ratio(worst, 50)}); errors ${runs.reduce((a, r) => a + r.errors, 0)}`);
+	console.log(
+		`  worst p95 over the mixes: ${ms(worst)} (${ratio(worst, 50)}); errors ${runs.reduce((a, r) => a + r.errors, 0)}`
+	);
 
-	console.log(`\nDashboard first render, signed in, ${RENDERS} sequential requests each (target 300 ms):`);
+	console.log(
+		`\nDashboard first render, signed in, ${RENDERS} sequential requests each (target 300 ms):`
+	);
 	await renders(origin, cookie, '/');
 	await renders(origin, cookie, '/?verdict=noncompliant&class=position&sort=shortfall&dir=desc');
 

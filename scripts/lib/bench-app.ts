@@ -4,6 +4,7 @@
  * processes, the model they upload and a wait for the compute backlog to drain.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
+import type { EntityManager } from '@mikro-orm/postgresql';
 import { s3Env } from './s3';
 import type { BenchServices } from './bench';
 
@@ -42,33 +43,51 @@ export function benchEnv({ databaseUrl, s3Port }: BenchServices): NodeJS.Process
 	return env;
 }
 
+/** The lead the benchmarks act as (`bench-lead@bench.test`), with a password when one is given. */
+export async function createBenchLead(em: EntityManager, passwordHash?: string) {
+	const { UserSchema } = await import('../../src/lib/server/db/entities');
+	const u = em.create(UserSchema, {
+		email: 'bench-lead@bench.test',
+		name: 'Bench Lead',
+		role: 'lead',
+		active: true,
+		...(passwordHash === undefined ? {} : { passwordHash }),
+		createdAt: new Date()
+	});
+	await em.flush();
+	return { id: u.id, email: u.email, name: u.name, role: 'lead' as const };
+}
+
 /**
- * A migrated ORM on the bench database, the bucket, and a lead to act as. Call after
- * `benchEnv`: the server modules are imported here, after the environment is set, because they
- * read it on first use.
+ * A migrated ORM on the bench database, the bucket, a lead to act as, and the registry and
+ * upload services the benchmarks seed with. Call after `benchEnv`: the server modules are
+ * imported here, after the environment is set, because they read it on first use.
  */
 export async function openBenchApp(databaseUrl: string) {
 	const { MikroORM } = await import('@mikro-orm/postgresql');
 	const { ormOptions } = await import('../../src/lib/server/db/options');
 	const { migrate } = await import('../../src/lib/server/db/orm');
 	const { ensureBucket } = await import('../../src/lib/server/storage/s3');
-	const { UserSchema } = await import('../../src/lib/server/db/entities');
+	const { createProduct } = await import('../../src/lib/server/registry/products');
+	const { createClass } = await import('../../src/lib/server/registry/classes');
+	const { createLoop } = await import('../../src/lib/server/registry/loops');
+	const { uploadRevision } = await import('../../src/lib/server/revisions/upload');
 
 	const orm = await MikroORM.init(ormOptions(databaseUrl));
 	await migrate(orm);
 	await ensureBucket();
 	const em = () => orm.em.fork();
-	const e0 = em();
-	const u = e0.create(UserSchema, {
-		email: 'bench-lead@bench.test',
-		name: 'Bench Lead',
-		role: 'lead',
-		active: true,
-		createdAt: new Date()
-	});
-	await e0.flush();
-	const lead = { id: u.id, email: u.email, name: u.name, role: 'lead' as const };
-	return { orm, em, lead, conn: em().getConnection() };
+	const lead = await createBenchLead(em());
+	return {
+		orm,
+		em,
+		lead,
+		conn: em().getConnection(),
+		createProduct,
+		createClass,
+		createLoop,
+		uploadRevision
+	};
 }
 
 type Connection = Awaited<ReturnType<typeof openBenchApp>>['conn'];
