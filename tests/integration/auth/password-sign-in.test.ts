@@ -1,23 +1,21 @@
 import { describe, expect, it } from 'vitest';
 import { DEMO_PASSWORD, me, postSignIn, signIn } from './flows';
-import { useAuthApp } from './support';
+import { DEMO_ROLE_SCOPES, useAuthApp } from './support';
 
 const auth = useAuthApp('auth_password');
 
 describe('password sign-in', () => {
-	it.each([
-		['viewer', ['read']],
-		['engineer', ['read', 'upload']],
-		['lead', ['read', 'upload']],
-		['admin', ['read', 'upload']]
-	])('signs the demo %s in with the role and scopes from our tables', async (role, scopes) => {
-		const client = auth.client();
-		await signIn(client, `${role}@headroom.test`);
-		const { status, body } = await me(client);
-		expect(status).toBe(200);
-		expect(body.user).toMatchObject({ email: `${role}@headroom.test`, role });
-		expect(body.scopes).toEqual(scopes);
-	});
+	it.each(DEMO_ROLE_SCOPES)(
+		'signs the demo %s in with the role and scopes from our tables',
+		async (role, scopes) => {
+			const client = auth.client();
+			await signIn(client, `${role}@headroom.test`);
+			const { status, body } = await me(client);
+			expect(status).toBe(200);
+			expect(body.user).toMatchObject({ email: `${role}@headroom.test`, role });
+			expect(body.scopes).toEqual(scopes);
+		}
+	);
 
 	it('keeps only our user id in the session cookie and sets its flags', async () => {
 		const client = auth.client();

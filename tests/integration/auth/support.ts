@@ -17,6 +17,14 @@ import {
 import { HttpClient } from '../support/http-client';
 import { appEnv, signIn } from './flows';
 
+/** Each demo role and the scopes its session and its API token must carry (written out, not derived). */
+export const DEMO_ROLE_SCOPES: [string, string[]][] = [
+	['viewer', ['read']],
+	['engineer', ['read', 'upload']],
+	['lead', ['read', 'upload']],
+	['admin', ['read', 'upload']]
+];
+
 export interface AuthAppOptions {
 	/** Sign the demo admin in once, as `admin`. */
 	signInAdmin?: boolean;

@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { HttpClient } from '../support/http-client';
 import { waitForMessage } from '../support/mail';
 import { appEnv, linkIn, me, signIn } from './flows';
-import { useAuthApp } from './support';
+import { DEMO_ROLE_SCOPES, useAuthApp } from './support';
 
 const auth = useAuthApp('auth_tokens', { signInAdmin: true });
 const bearer = (token: string) => me(auth.client(), token);
@@ -34,17 +34,15 @@ async function newMember(role: string) {
 }
 
 describe('API tokens', () => {
-	it.each([
-		['viewer', ['read']],
-		['engineer', ['read', 'upload']],
-		['lead', ['read', 'upload']],
-		['admin', ['read', 'upload']]
-	])('the demo %s token carries all of its role’s scopes', async (role, scopes) => {
-		const { status, body } = await bearer(`hr_demo_${role}`);
-		expect(status).toBe(200);
-		expect(body.user.role).toBe(role);
-		expect(body.scopes).toEqual(scopes);
-	});
+	it.each(DEMO_ROLE_SCOPES)(
+		'the demo %s token carries all of its role’s scopes',
+		async (role, scopes) => {
+			const { status, body } = await bearer(`hr_demo_${role}`);
+			expect(status).toBe(200);
+			expect(body.user.role).toBe(role);
+			expect(body.scopes).toEqual(scopes);
+		}
+	);
 
 	it('answers 401 in the contract shape for unknown, malformed and missing tokens', async () => {
 		for (const header of [
