@@ -6,21 +6,17 @@
 import { scaleLinear, scaleLog } from 'd3-scale';
 import type { CaseResponse } from '../margins/sampler';
 import type { MarginsResult } from '../margins/types';
-import { axis, clamp, type Axis, type Insets } from './axis';
-import type { BodeOptions } from './bode-types';
+import { axis, clamp, type Insets } from './axis';
+import type { BodeGeometry, BodeOptions } from './bode-types';
 import type { Rect } from './path';
 import { criticalLineNear, valueAt } from './response';
 import { logTicks, niceDomain, pickStep, stepTicks } from './ticks';
 
-export interface BodeFrame {
-	width: number;
-	height: number;
-	magnitudePanel: Rect;
-	phasePanel: Rect;
-	x: Axis;
-	magnitude: Axis;
-	phase: Axis;
-}
+/** The part of BodeGeometry that is layout: size, panels and axes. */
+export type BodeFrame = Pick<
+	BodeGeometry,
+	'width' | 'height' | 'magnitudePanel' | 'phasePanel' | 'x' | 'magnitude' | 'phase'
+>;
 
 const DEFAULT_INSETS: Insets = { top: 10, right: 14, bottom: 34, left: 58 };
 

@@ -9,17 +9,20 @@ import type { CaseResponse } from '../margins/sampler';
 import type { MarginsResult } from '../margins/types';
 import { clamp } from './axis';
 import type { BodeFrame } from './bode-frame';
-import type { DimensionLine, GainCrossoverMarker, PhaseCrossoverMarker } from './bode-types';
+import type {
+	BodeGeometry,
+	DimensionLine,
+	GainCrossoverMarker,
+	PhaseCrossoverMarker
+} from './bode-types';
 import { segmentPath, type Rect } from './path';
 import { criticalLineNear, valueAt } from './response';
 import { formatHz, formatNumber } from './ticks';
 
-export interface BodeMarkers {
-	gainCrossovers: GainCrossoverMarker[];
-	phaseCrossovers: PhaseCrossoverMarker[];
-	gainMarginLines: DimensionLine[];
-	phaseMarginLines: DimensionLine[];
-}
+export type BodeMarkers = Pick<
+	BodeGeometry,
+	'gainCrossovers' | 'phaseCrossovers' | 'gainMarginLines' | 'phaseMarginLines'
+>;
 
 export function bodeMarkers(
 	responses: readonly CaseResponse[],
