@@ -5,8 +5,8 @@
  * the object store.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { spawn, type ChildProcess } from 'node:child_process';
 import { setupRegistry, basicScenario, type Registry } from '../registry/support';
+import { startTestWorker, until as waitUntil, type TestWorker } from '../support/worker';
 import { ensureBucket } from '../../../src/lib/server/storage/s3';
 import { uploadRevision } from '../../../src/lib/server/revisions/upload';
 import { getRevision } from '../../../src/lib/server/revisions/queries';
@@ -18,8 +18,7 @@ import * as route from '../../../src/routes/api/loops/[id]/history/+server';
 import * as pageRoute from '../../../src/routes/loops/[id]/history/+page.server';
 
 let r: Registry;
-let worker: ChildProcess;
-let log = '';
+let worker: TestWorker | undefined;
 let scenario: Awaited<ReturnType<typeof basicScenario>>;
 const saved = process.env.DATABASE_URL;
 
@@ -45,19 +44,9 @@ const broken = {
 	blocks: [{ type: 'polynomial', numerator: [1], denominator: [0, 1] }]
 };
 
-async function until<T>(
-	what: string,
-	probe: () => Promise<T | undefined>,
-	ms = 30_000
-): Promise<T> {
-	const end = Date.now() + ms;
-	for (;;) {
-		const v = await probe();
-		if (v !== undefined) return v;
-		if (Date.now() > end) throw new Error(`timed out waiting for ${what}\n${log}`);
-		await new Promise((res) => setTimeout(res, 150));
-	}
-}
+/** Polls with the worker's output in the failure message. */
+const until = <T>(what: string, probe: () => Promise<T | undefined>) =>
+	waitUntil(what, probe, 30_000, () => worker?.log() ?? '');
 
 async function upload(model: object, fileName: string, note: string) {
 	const rev = await uploadRevision(r.em(), r.users.engineer, scenario.loop.id, {
@@ -95,13 +84,7 @@ beforeAll(async () => {
 	await ensureBucket();
 	scenario = await basicScenario(r);
 	process.env.DATABASE_URL = r.db.url;
-	worker = spawn(process.execPath, ['--import', 'tsx', 'scripts/worker.ts'], {
-		env: { ...process.env, DATABASE_URL: r.db.url, ORIGIN: 'http://127.0.0.1:1' },
-		stdio: ['ignore', 'pipe', 'pipe']
-	});
-	worker.stdout?.on('data', (d) => (log += d));
-	worker.stderr?.on('data', (d) => (log += d));
-	await until('the worker', async () => (log.includes('ready') ? true : undefined));
+	worker = await startTestWorker({ DATABASE_URL: r.db.url, ORIGIN: 'http://127.0.0.1:1' });
 
 	expect((await upload(first, 'rig.json', 'first identification')).state).toBe('computed');
 	await until('the first verdict', async () =>
@@ -123,10 +106,7 @@ beforeAll(async () => {
 }, 120_000);
 
 afterAll(async () => {
-	if (worker && worker.exitCode === null && worker.signalCode === null) {
-		worker.kill('SIGTERM');
-		await new Promise((res) => worker.once('exit', res));
-	}
+	await worker?.stop();
 	await closeOrm();
 	process.env.DATABASE_URL = saved;
 	await r?.close();

@@ -4,18 +4,21 @@
  * announced exactly once however often the event arrives; new targets re-judge the class.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { spawn, type ChildProcess } from 'node:child_process';
 import { setupRegistry, basicScenario, type Registry } from '../registry/support';
+import { startTestWorker, until as waitUntil, type TestWorker } from '../support/worker';
 import { ensureBucket } from '../../../src/lib/server/storage/s3';
-import { announceObject, presignRevision, uploadRevision } from '../../../src/lib/server/revisions/upload';
+import {
+	announceObject,
+	presignRevision,
+	uploadRevision
+} from '../../../src/lib/server/revisions/upload';
 import { getRevision } from '../../../src/lib/server/revisions/queries';
 import { setRequirement } from '../../../src/lib/server/registry/requirements';
 import { grantDeviation, revokeDeviation } from '../../../src/lib/server/registry/deviations';
 import { waitForMessage } from '../support/mail';
 
 let r: Registry;
-let worker: ChildProcess;
-let log = '';
+let worker: TestWorker | undefined;
 let scenario: Awaited<ReturnType<typeof basicScenario>>;
 
 // 24/((s+1)(s+2)(s+3)) scaled into the speed band: PM 35.4° (below the 45° target), GM 7.96 dB.
@@ -31,15 +34,9 @@ const passing = JSON.stringify({
 	blocks: [{ type: 'factored', zeros: [], poles: [-w, -2 * w, -3 * w], gain: 8 * w ** 3 }]
 });
 
-async function until<T>(what: string, probe: () => Promise<T | undefined>, ms = 30_000): Promise<T> {
-	const end = Date.now() + ms;
-	for (;;) {
-		const v = await probe();
-		if (v !== undefined) return v;
-		if (Date.now() > end) throw new Error(`timed out waiting for ${what}\n${log}`);
-		await new Promise((res) => setTimeout(res, 150));
-	}
-}
+/** Polls with the worker's output in the failure message. */
+const until = <T>(what: string, probe: () => Promise<T | undefined>) =>
+	waitUntil(what, probe, 30_000, () => worker?.log() ?? '');
 
 const settled = (id: string) =>
 	until(`revision ${id} to settle`, async () => {
@@ -48,26 +45,22 @@ const settled = (id: string) =>
 	});
 
 const verdictOf = async (loopId: string) =>
-	(await r.em().getConnection().execute<{ verdict: string }[]>('select verdict from loop where id = ?', [loopId]))[0].verdict;
+	(
+		await r
+			.em()
+			.getConnection()
+			.execute<{ verdict: string }[]>('select verdict from loop where id = ?', [loopId])
+	)[0].verdict;
 
 beforeAll(async () => {
 	r = await setupRegistry('revisions');
 	await ensureBucket();
 	scenario = await basicScenario(r);
-	worker = spawn(process.execPath, ['--import', 'tsx', 'scripts/worker.ts'], {
-		env: { ...process.env, DATABASE_URL: r.db.url, ORIGIN: 'http://127.0.0.1:1' },
-		stdio: ['ignore', 'pipe', 'pipe']
-	});
-	worker.stdout?.on('data', (d) => (log += d));
-	worker.stderr?.on('data', (d) => (log += d));
-	await until('the worker', async () => (log.includes('ready') ? true : undefined));
+	worker = await startTestWorker({ DATABASE_URL: r.db.url, ORIGIN: 'http://127.0.0.1:1' });
 });
 
 afterAll(async () => {
-	if (worker && worker.exitCode === null && worker.signalCode === null) {
-		worker.kill('SIGTERM');
-		await new Promise((res) => worker.once('exit', res));
-	}
+	await worker?.stop();
 	await r?.close();
 });
 
@@ -88,13 +81,22 @@ describe('revision pipeline', () => {
 
 	it('recognises identical content and names the revision it matches', async () => {
 		await expect(
-			uploadRevision(r.em(), r.users.engineer, scenario.loop.id, { fileName: 'again.json', bytes: new TextEncoder().encode(failing) })
+			uploadRevision(r.em(), r.users.engineer, scenario.loop.id, {
+				fileName: 'again.json',
+				bytes: new TextEncoder().encode(failing)
+			})
 		).rejects.toThrow(/identical to revision 1/);
 	});
 
 	it('keeps a refused model with its message and path, and leaves the verdict alone', async () => {
-		const bad = JSON.stringify({ format: 'headroom-loop-model/1', blocks: [{ type: 'polynomial', numerator: [1], denominator: [0, 1] }] });
-		const rev = await uploadRevision(r.em(), r.users.engineer, scenario.loop.id, { fileName: 'bad.json', bytes: new TextEncoder().encode(bad) });
+		const bad = JSON.stringify({
+			format: 'headroom-loop-model/1',
+			blocks: [{ type: 'polynomial', numerator: [1], denominator: [0, 1] }]
+		});
+		const rev = await uploadRevision(r.em(), r.users.engineer, scenario.loop.id, {
+			fileName: 'bad.json',
+			bytes: new TextEncoder().encode(bad)
+		});
 		const done = await settled(rev.id);
 		expect(done.state).toBe('rejected');
 		expect(done.error?.path).toBe('blocks[0].denominator');
@@ -104,16 +106,25 @@ describe('revision pipeline', () => {
 
 	it('refuses uploads from an engineer who does not own the loop', async () => {
 		await expect(
-			uploadRevision(r.em(), r.users.engineer2, scenario.loop.id, { bytes: new TextEncoder().encode(passing) })
+			uploadRevision(r.em(), r.users.engineer2, scenario.loop.id, {
+				bytes: new TextEncoder().encode(passing)
+			})
 		).rejects.toThrow(/owner/);
 	});
 
 	it('announces a presigned upload exactly once, however often the event arrives', async () => {
-		const { revision, uploadUrl } = await presignRevision(r.em(), r.users.engineer, scenario.loop.id, { fileName: 'big.json' });
+		const { revision, uploadUrl } = await presignRevision(
+			r.em(),
+			r.users.engineer,
+			scenario.loop.id,
+			{ fileName: 'big.json' }
+		);
 		expect(revision.state).toBe('awaiting-upload');
 		const put = await fetch(uploadUrl, { method: 'PUT', body: passing });
 		expect(put.ok).toBe(true);
-		const outcomes = await Promise.all(Array.from({ length: 5 }, () => announceObject(r.em(), revision.objectKey)));
+		const outcomes = await Promise.all(
+			Array.from({ length: 5 }, () => announceObject(r.em(), revision.objectKey))
+		);
 		expect(outcomes.filter((o) => o === 'queued')).toHaveLength(1);
 		expect(outcomes.filter((o) => o === 'already')).toHaveLength(4);
 		const done = await settled(revision.id);
@@ -129,11 +140,16 @@ describe('revision pipeline', () => {
 			crossoverMaxHz: '300',
 			reason: 'tighter phase margin for the new encoder'
 		});
-		await until('the re-judged verdict', async () => ((await verdictOf(scenario.loop.id)) === 'noncompliant' ? true : undefined));
-		const events = await r.em().getConnection().execute<{ cause: string; verdict: string }[]>(
-			'select cause, verdict from verdict_event where loop_id = ? order by at',
-			[scenario.loop.id]
+		await until('the re-judged verdict', async () =>
+			(await verdictOf(scenario.loop.id)) === 'noncompliant' ? true : undefined
 		);
+		const events = await r
+			.em()
+			.getConnection()
+			.execute<{ cause: string; verdict: string }[]>(
+				'select cause, verdict from verdict_event where loop_id = ? order by at',
+				[scenario.loop.id]
+			);
 		expect(events.map((e) => e.cause)).toContain('requirement');
 		const mail = await waitForMessage({
 			to: 'engineer@registry.test',
@@ -150,8 +166,12 @@ describe('revision pipeline', () => {
 			reason: 'encoder upgrade scheduled for the next build',
 			expiresAt: new Date(Date.now() + 30 * 86_400_000).toISOString()
 		});
-		await until('the covered verdict', async () => ((await verdictOf(scenario.loop.id)) === 'covered' ? true : undefined));
+		await until('the covered verdict', async () =>
+			(await verdictOf(scenario.loop.id)) === 'covered' ? true : undefined
+		);
 		await revokeDeviation(r.em(), r.users.lead, d.id);
-		await until('the verdict after revoking', async () => ((await verdictOf(scenario.loop.id)) === 'noncompliant' ? true : undefined));
+		await until('the verdict after revoking', async () =>
+			(await verdictOf(scenario.loop.id)) === 'noncompliant' ? true : undefined
+		);
 	});
 });
