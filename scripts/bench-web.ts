@@ -8,7 +8,7 @@
  *   - the dashboard `/` first render for a signed-in session: server time (Server-Timing) and
  *     time to first byte on loopback — target 300 ms
  * Environment: BENCH_LOOPS (10000), BENCH_REVISIONS_PER_LOOP (10), BENCH_SECONDS (8 per mix),
- * BENCH_RENDERS (30).
+ * BENCH_RENDERS (30); BENCH_HOLD=1 pauses after seeding (psql address printed) until SIGUSR2.
  */
 import { resolve } from 'node:path';
 import autocannon from 'autocannon';
@@ -303,6 +303,11 @@ async function main({ supervisor, pg, s3Port, databaseUrl }: BenchServices) {
 		`\nHeadroom web benchmark (PostgreSQL ${pg.port}, S3 fake ${s3Port}, web ${webPort})`
 	);
 	const { token, email } = await seed(env);
+	if (process.env.BENCH_HOLD === '1') {
+		// For studying query plans by hand: the seeded database stays up until SIGUSR2.
+		console.log(`\nholding: psql '${env.DATABASE_URL}' — kill -USR2 ${process.pid} to go on`);
+		await new Promise((go) => process.once('SIGUSR2', go));
+	}
 	const web = supervisor.start(appProcess(root, 'web', env));
 	const origin = `http://${HOST}:${webPort}`;
 	await waitForHttp('the web server', `${origin}/api/health`, { child: web, timeoutMs: 90_000 });

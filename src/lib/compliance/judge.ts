@@ -73,7 +73,8 @@ export function isActive(d: DeviationInput, now: Date): boolean {
 	return !d.revokedAt && d.startsAt <= now && now < d.expiresAt;
 }
 
-const present = (v: string | null | undefined): v is string => v !== null && v !== undefined && v !== '';
+const present = (v: string | null | undefined): v is string =>
+	v !== null && v !== undefined && v !== '';
 const short = (d: Decimal) => d.toSignificantDigits(6).toString();
 
 /** One criterion against one set of targets; null when the targets say nothing about it. */
@@ -100,34 +101,54 @@ function check(
 	const actual = actualOf(criterion, w);
 	if (actual === null) {
 		if (criterion === 'delayMarginSamples' && w.delayMarginSeconds !== null) {
-			return { ...base, status: 'not-applicable', actual, shortfall: null, note: 'continuous loop' };
+			return {
+				...base,
+				status: 'not-applicable',
+				actual,
+				shortfall: null,
+				note: 'continuous loop'
+			};
 		}
 		// Unbounded: no crossover on that side, so no amount of that change destabilises the loop.
 		return { ...base, status: 'pass', actual, shortfall: null, note: 'unbounded' };
 	}
-	const gap = atMost
-		? new Decimal(actual).minus(threshold)
-		: new Decimal(threshold).minus(actual);
+	const gap = atMost ? new Decimal(actual).minus(threshold) : new Decimal(threshold).minus(actual);
 	return gap.gt(0)
 		? { ...base, status: 'fail', actual, shortfall: short(gap) }
 		: { ...base, status: 'pass', actual, shortfall: null };
 }
 
-function checkBand(targets: Targets, result: MarginsResult): Omit<CriterionResult, 'criterion'> | null {
+function checkBand(
+	targets: Targets,
+	result: MarginsResult
+): Omit<CriterionResult, 'criterion'> | null {
 	const min = targets.crossoverMinHz;
 	const max = targets.crossoverMaxHz;
 	if (!present(min) && !present(max)) return null;
 	const required = `${present(min) ? new Decimal(min).toString() : '0'}–${present(max) ? new Decimal(max).toString() : '∞'}`;
 	const base = { required, comparison: 'within' as const };
 	const span = crossoverSpan(result);
-	if (!span) return { ...base, status: 'fail', actual: null, shortfall: null, note: 'no gain crossover' };
+	if (!span)
+		return { ...base, status: 'fail', actual: null, shortfall: null, note: 'no gain crossover' };
 	const below = present(min) ? new Decimal(min).minus(span.low) : new Decimal(0);
 	const above = present(max) ? new Decimal(span.high).minus(max) : new Decimal(0);
 	if (below.gt(0)) {
-		return { ...base, status: 'fail', actual: span.low, shortfall: short(below), fromCase: span.lowCase };
+		return {
+			...base,
+			status: 'fail',
+			actual: span.low,
+			shortfall: short(below),
+			fromCase: span.lowCase
+		};
 	}
 	if (above.gt(0)) {
-		return { ...base, status: 'fail', actual: span.high, shortfall: short(above), fromCase: span.highCase };
+		return {
+			...base,
+			status: 'fail',
+			actual: span.high,
+			shortfall: short(above),
+			fromCase: span.highCase
+		};
 	}
 	return { ...base, status: 'pass', actual: span.low, shortfall: null, fromCase: span.lowCase };
 }
@@ -151,7 +172,8 @@ export function judge(input: JudgeInput): Judgement {
 		const outcome = check(criterion, input.targets, result);
 		if (!outcome) continue;
 		const row: CriterionResult = { criterion, ...outcome };
-		if (row.status === 'fail' && result.worstCase.stable) coverByDeviation(row, input.targets, active, result);
+		if (row.status === 'fail' && result.worstCase.stable)
+			coverByDeviation(row, input.targets, active, result);
 		criteria.push(row);
 	}
 	const failing = criteria.filter((c) => c.status === 'fail').map((c) => c.criterion);
@@ -164,7 +186,12 @@ export function judge(input: JudgeInput): Judgement {
 }
 
 /** A deviation covers a shortfall when the actual value meets the relaxed target. */
-function coverByDeviation(row: CriterionResult, targets: Targets, active: DeviationInput[], result: MarginsResult) {
+function coverByDeviation(
+	row: CriterionResult,
+	targets: Targets,
+	active: DeviationInput[],
+	result: MarginsResult
+) {
 	const fields = TARGET_FIELDS[row.criterion];
 	for (const d of active) {
 		if (!fields.some((f) => f in d.relaxed)) continue;
@@ -179,3 +206,14 @@ function coverByDeviation(row: CriterionResult, targets: Targets, active: Deviat
 		}
 	}
 }
+
+/** Verdicts from best to worst, to tell whether a change made things worse (and to sort by). */
+export const VERDICT_RANK: Record<Verdict, number> = {
+	compliant: 0,
+	covered: 1,
+	empty: 2,
+	pending: 2,
+	rejected: 3,
+	noncompliant: 4,
+	unstable: 5
+};

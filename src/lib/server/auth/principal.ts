@@ -1,7 +1,9 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { UserSchema, type User } from '../db/entities';
+import type { User } from '../db/entities';
+import { isUuid } from '../registry/common';
 import { scopesForRole, type Scope } from '../../auth/roles';
 import { resolveToken } from './tokens';
+import { preparedRows } from '../db/prepared';
 
 /** What App.Locals carries about the caller. */
 export interface Principal {
@@ -9,7 +11,7 @@ export interface Principal {
 	scopes: Scope[];
 }
 
-const toLocals = (user: User, scopes: Scope[]): Principal => ({
+const toLocals = (user: Principal['user'], scopes: Scope[]): Principal => ({
 	user: { id: user.id, email: user.email, name: user.name, role: user.role },
 	scopes
 });
@@ -22,14 +24,25 @@ export async function principalFromSession(
 	em: EntityManager,
 	session: { userId: string; signedInAt?: number }
 ): Promise<Principal | null> {
-	const user = await em.findOne(UserSchema, { id: session.userId });
+	if (!isUuid(session.userId)) return null;
+	// Every signed-in page and call reads this: one indexed row, no entity hydration.
+	const [user] = await preparedRows<
+		Principal['user'] & { active: boolean; valid_from_ms: number | null }
+	>(
+		em,
+		`select id, email, name, role, active, floor(extract(epoch from sessions_valid_from) * 1000)::float8 as valid_from_ms
+		 from app_user where id = ?`,
+		[session.userId]
+	);
 	if (!user || !user.active) return null;
-	const validFrom = user.sessionsValidFrom?.getTime();
-	if (validFrom !== undefined && (session.signedInAt ?? 0) < validFrom) return null;
+	if (user.valid_from_ms !== null && (session.signedInAt ?? 0) < user.valid_from_ms) return null;
 	return toLocals(user, scopesForRole(user.role));
 }
 
-export async function principalFromBearer(em: EntityManager, value: string): Promise<Principal | null> {
+export async function principalFromBearer(
+	em: EntityManager,
+	value: string
+): Promise<Principal | null> {
 	const found = await resolveToken(em, value);
 	return found && toLocals(found.user, found.scopes);
 }

@@ -4,6 +4,7 @@ import { ApiTokenSchema, UserSchema, type ApiToken, type User } from '../db/enti
 import { effectiveScopes, scopesForRole, type Scope } from '../../auth/roles';
 import { recordAudit } from '../audit/audit';
 import { Forbidden, Invalid, NotFound } from '../errors';
+import { preparedRows } from '../db/prepared';
 import { newTokenValue, sha256, TOKEN_PREFIX } from './secrets';
 
 export interface TokenRow {
@@ -26,10 +27,19 @@ const row = (t: ApiToken): TokenRow => ({
 	revokedAt: t.revokedAt ?? null
 });
 
-const tokenAudit = (t: ApiToken) => ({ name: t.name, scopes: [...t.scopes], hint: t.hint, revoked: Boolean(t.revokedAt) });
+const tokenAudit = (t: ApiToken) => ({
+	name: t.name,
+	scopes: [...t.scopes],
+	hint: t.hint,
+	revoked: Boolean(t.revokedAt)
+});
 
 export async function listTokens(em: EntityManager, ownerId: string): Promise<TokenRow[]> {
-	const tokens = await em.find(ApiTokenSchema, { owner: ownerId }, { orderBy: { createdAt: 'desc' } });
+	const tokens = await em.find(
+		ApiTokenSchema,
+		{ owner: ownerId },
+		{ orderBy: { createdAt: 'desc' } }
+	);
 	return tokens.map(row);
 }
 
@@ -44,7 +54,8 @@ export async function createToken(
 ): Promise<{ token: TokenRow; value: string }> {
 	const allowed = scopesForRole(owner.role);
 	const refused = input.scopes.filter((s) => !allowed.includes(s));
-	if (refused.length) throw new Forbidden(`Your role cannot grant the ${refused.join(', ')} scope.`);
+	if (refused.length)
+		throw new Forbidden(`Your role cannot grant the ${refused.join(', ')} scope.`);
 	if (!input.scopes.length) throw new Invalid('Choose at least one scope.', 'scopes');
 	const value = input.value ?? newTokenValue();
 	const token = em.create(ApiTokenSchema, {
@@ -56,42 +67,86 @@ export async function createToken(
 		scopes: [...new Set(input.scopes)],
 		createdAt: new Date()
 	});
-	recordAudit(em, { actorId: owner.id, action: 'api_token.created', entityType: 'api_token', entityId: token.id, after: tokenAudit(token) });
+	recordAudit(em, {
+		actorId: owner.id,
+		action: 'api_token.created',
+		entityType: 'api_token',
+		entityId: token.id,
+		after: tokenAudit(token)
+	});
 	await em.flush();
 	return { token: row(token), value };
 }
 
 /** Owners revoke their own tokens; revoking twice is harmless. */
-export async function revokeToken(em: EntityManager, ownerId: string, tokenId: string): Promise<void> {
+export async function revokeToken(
+	em: EntityManager,
+	ownerId: string,
+	tokenId: string
+): Promise<void> {
 	const token = await em.findOne(ApiTokenSchema, { id: tokenId, owner: ownerId });
 	if (!token) throw new NotFound('No such token.');
 	if (token.revokedAt) return;
 	const before = tokenAudit(token);
 	token.revokedAt = new Date();
-	recordAudit(em, { actorId: ownerId, action: 'api_token.revoked', entityType: 'api_token', entityId: token.id, before, after: tokenAudit(token) });
+	recordAudit(em, {
+		actorId: ownerId,
+		action: 'api_token.revoked',
+		entityType: 'api_token',
+		entityId: token.id,
+		before,
+		after: tokenAudit(token)
+	});
 	await em.flush();
 }
 
 export interface TokenPrincipal {
-	user: User;
+	user: Pick<User, 'id' | 'email' | 'name' | 'role'>;
 	scopes: Scope[];
+}
+
+interface TokenLookup {
+	id: string;
+	scopes: Scope[];
+	stale: boolean;
+	user_id: string;
+	email: string;
+	name: string;
+	role: User['role'];
 }
 
 /**
  * The user and scopes a bearer value stands for, or null. A revoked token, a deactivated owner
  * and an unknown value all fail alike. Scopes shrink with the owner's current role.
+ *
+ * Every API call comes through here, so it is one indexed query (no entity hydration), plus a
+ * write at most once a minute per token: "last used" needs no finer grain than that, and a busy
+ * pipeline should not turn every API read into a write.
  */
-export async function resolveToken(em: EntityManager, value: string): Promise<TokenPrincipal | null> {
+export async function resolveToken(
+	em: EntityManager,
+	value: string
+): Promise<TokenPrincipal | null> {
 	if (!value.startsWith(TOKEN_PREFIX) || value.length > 200) return null;
-	const token = await em.findOne(ApiTokenSchema, { tokenHash: sha256(value), revokedAt: null }, { populate: ['owner'] });
-	if (!token || !token.owner.active) return null;
-	// At most one write a minute per token: "last used" needs no finer grain than that, and a
-	// busy pipeline should not turn every API read into a write.
-	await em
-		.getConnection()
-		.execute(
-			`update api_token set last_used_at = now() where id = ? and (last_used_at is null or last_used_at < now() - interval '1 minute')`,
-			[token.id]
-		);
-	return { user: token.owner, scopes: effectiveScopes(token.scopes, token.owner.role) };
+	const [found] = await preparedRows<TokenLookup>(
+		em,
+		`select t.id, t.scopes, (t.last_used_at is null or t.last_used_at < now() - interval '1 minute') as stale,
+		        u.id as user_id, u.email, u.name, u.role
+		 from api_token t join app_user u on u.id = t.owner_id
+		 where t.token_hash = ? and t.revoked_at is null and u.active`,
+		[sha256(value)]
+	);
+	if (!found) return null;
+	if (found.stale) {
+		await em
+			.getConnection()
+			.execute(
+				`update api_token set last_used_at = now() where id = ? and (last_used_at is null or last_used_at < now() - interval '1 minute')`,
+				[found.id]
+			);
+	}
+	return {
+		user: { id: found.user_id, email: found.email, name: found.name, role: found.role },
+		scopes: effectiveScopes(found.scopes, found.role)
+	};
 }

@@ -5,25 +5,11 @@
  */
 import { VERDICTS, type Verdict } from '../../compliance/judge';
 import { CRITERIA, type Criterion } from '../../compliance/criteria';
-import { VERDICT_RANK } from '../db/entities/verdict-event';
+import { LOOP_SORTS, orderSql, SORT_KEYS, type LoopSort } from './loop-sort-keys';
 import { Invalid } from '../errors';
 import { isUuid } from './common';
 
-export const LOOP_SORTS = [
-	'key',
-	'name',
-	'product',
-	'class',
-	'owner',
-	'verdict',
-	'updatedAt',
-	'phaseMargin',
-	'upperGainMargin',
-	'delayMargin',
-	'modulusMargin',
-	'shortfall'
-] as const;
-export type LoopSort = (typeof LOOP_SORTS)[number];
+export { LOOP_SORTS, type LoopSort } from './loop-sort-keys';
 
 export interface LoopFilters {
 	q?: string;
@@ -41,15 +27,18 @@ export interface LoopFilters {
 	dir?: 'asc' | 'desc';
 }
 
-
 // A date (midnight UTC) or a date-time with seconds optional and a zone (Z or ±hh:mm) optional.
-const ISO = /^\d{4}-\d{2}-\d{2}(?:[T ]\d{2}:\d{2}(?::\d{2}(?:\.\d{1,9})?)?(?:Z|[+-]\d{2}:?\d{2})?)?$/;
+const ISO =
+	/^\d{4}-\d{2}-\d{2}(?:[T ]\d{2}:\d{2}(?::\d{2}(?:\.\d{1,9})?)?(?:Z|[+-]\d{2}:?\d{2})?)?$/;
 
 function parseInstant(raw: string, name: string): Date {
 	const value = /^\d{4}-\d{2}-\d{2}$/.test(raw) ? `${raw}T00:00:00Z` : raw.replace(' ', 'T');
 	const date = new Date(value);
 	if (!ISO.test(raw) || Number.isNaN(date.getTime())) {
-		throw new Invalid(`${name} must be an ISO date (2026-12-01) or date-time (2026-12-01T08:00:00Z).`, name);
+		throw new Invalid(
+			`${name} must be an ISO date (2026-12-01) or date-time (2026-12-01T08:00:00Z).`,
+			name
+		);
 	}
 	return date;
 }
@@ -60,7 +49,8 @@ export function loopFiltersFrom(params: URLSearchParams): LoopFilters {
 	const pick = <T extends string>(name: string, allowed: readonly T[]): T | undefined => {
 		const v = text(name);
 		if (v === undefined) return undefined;
-		if (!(allowed as readonly string[]).includes(v)) throw new Invalid(`${name} must be one of ${allowed.join(', ')}.`, name);
+		if (!(allowed as readonly string[]).includes(v))
+			throw new Invalid(`${name} must be one of ${allowed.join(', ')}.`, name);
 		return v as T;
 	};
 	const since = text('changedSince');
@@ -79,72 +69,77 @@ export function loopFiltersFrom(params: URLSearchParams): LoopFilters {
 	};
 }
 
+type Alias = 'p' | 'c' | 'u';
+const JOIN_SQL: Record<Alias, string> = {
+	p: 'join product p on p.id = l.product_id',
+	c: 'join loop_class c on c.id = l.loop_class_id',
+	u: 'join app_user u on u.id = l.owner_id'
+};
+
 /** The tables a loop row is listed, filtered and sorted with (aliases l, p, c, u). */
-export const JOINS = `join product p on p.id = l.product_id
-	join loop_class c on c.id = l.loop_class_id
-	join app_user u on u.id = l.owner_id`;
+export const JOINS = Object.values(JOIN_SQL).join('\n\t');
 export const FROM = `from loop l ${JOINS}`;
+
+/**
+ * `from loop l` with only the joins the given aliases need: every loop has exactly one product,
+ * class and owner (not-null foreign keys), so leaving an unused join out changes no row, and
+ * the planner cannot drop an inner join on its own.
+ */
+export const fromWith = (aliases: Iterable<Alias>) => {
+	const need = new Set(aliases);
+	return `from loop l ${(Object.keys(JOIN_SQL) as Alias[])
+		.filter((a) => need.has(a))
+		.map((a) => JOIN_SQL[a])
+		.join(' ')}`;
+};
 
 const like = (q: string) => `%${q.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
 
 /** `where …` and its parameters; `omit` leaves filters out (the counts per verdict ignore `verdict`). */
-export function whereOf(f: LoopFilters, omit: (keyof LoopFilters)[] = []): { sql: string; params: unknown[] } {
+export function whereOf(
+	f: LoopFilters,
+	omit: (keyof LoopFilters)[] = []
+): { sql: string; params: unknown[]; joins: Alias[] } {
 	const clauses: string[] = [];
 	const params: unknown[] = [];
+	const joins: Alias[] = [];
 	const add = (sql: string, ...values: unknown[]) => {
 		clauses.push(sql);
 		params.push(...values);
 	};
 	const use = (k: keyof LoopFilters) => f[k] !== undefined && !omit.includes(k);
 	if (use('q')) add('(l.key ilike ? or l.name ilike ?)', like(f.q!), like(f.q!));
-	if (use('product')) add('p.key = ?', f.product);
-	if (use('class')) add('c.key = ?', f.class);
+	if (use('product')) {
+		add('p.key = ?', f.product);
+		joins.push('p');
+	}
+	if (use('class')) {
+		add('c.key = ?', f.class);
+		joins.push('c');
+	}
 	if (use('owner')) {
 		if (isUuid(f.owner!)) add('l.owner_id = ?', f.owner);
-		else add('u.email = ?', f.owner!.toLowerCase());
+		else {
+			add('u.email = ?', f.owner!.toLowerCase());
+			joins.push('u');
+		}
 	}
 	if (use('verdict')) add('l.verdict = ?', f.verdict);
 	if (use('failing')) add('l.failing_criteria @> array[?::text]', f.failing);
 	if (use('tag')) add('l.tags @> array[?::text]', f.tag);
 	if (use('changedSince')) {
-		// One set of ids from two index range scans, joined once (an OR across them would be
-		// checked loop by loop).
-		add(
-			`l.id in (select x.id from loop x where x.verdict_changed_at >= ?
-			          union select r.loop_id from revision r where r.uploaded_at >= ?)`,
-			f.changedSince,
-			f.changedSince
-		);
+		// last_revision_at is kept by a trigger on revision inserts; two indexed columns of loop.
+		add('(l.verdict_changed_at >= ? or l.last_revision_at >= ?)', f.changedSince, f.changedSince);
 	}
 	const archived = omit.includes('archived') ? 'all' : (f.archived ?? 'active');
-	if (archived !== 'all') add(archived === 'active' ? 'l.archived_at is null' : 'l.archived_at is not null');
-	return { sql: clauses.length ? `where ${clauses.join(' and ')}` : '', params };
+	if (archived !== 'all')
+		add(archived === 'active' ? 'l.archived_at is null' : 'l.archived_at is not null');
+	return { sql: clauses.length ? `where ${clauses.join(' and ')}` : '', params, joins };
 }
 
-const rankCase = `case l.verdict ${Object.entries(VERDICT_RANK)
-	.map(([v, r]) => `when '${v}' then ${r}`)
-	.join(' ')} end`;
-
-/** Sort expressions; margins are worst case over operating cases, a phase margin by its size. */
-const SORT_SQL: Record<LoopSort, string> = {
-	key: 'l.key',
-	name: 'l.name',
-	product: 'p.key',
-	class: 'c.key',
-	owner: 'u.name',
-	// Best to worst (compliant … unstable), so `desc` puts what needs attention first.
-	verdict: rankCase,
-	updatedAt: 'l.updated_at',
-	phaseMargin: 'abs(l.wc_phase_margin_deg)',
-	upperGainMargin: 'l.wc_upper_gain_margin_db',
-	delayMargin: 'l.wc_delay_margin_s',
-	modulusMargin: 'l.wc_modulus_margin',
-	shortfall: 'l.worst_shortfall'
-};
-
 /** `order by …`: loops without a value (not computed, or unbounded) come last either way. */
-export function orderOf(f: LoopFilters): string {
-	const dir = f.dir ?? 'asc';
-	// Ties broken by product and key so pages never overlap.
-	return `order by ${SORT_SQL[f.sort ?? 'key']} ${dir} nulls last, p.key asc, l.key asc, l.id asc`;
+export function orderOf(f: LoopFilters): { sql: string; joins: Alias[] } {
+	const sort = f.sort ?? 'key';
+	const join = SORT_KEYS[sort].join;
+	return { sql: orderSql(sort, f.dir ?? 'asc'), joins: join ? [join] : [] };
 }

@@ -10,11 +10,24 @@ import { atLeast } from '../../auth/roles';
 import { Conflict, Forbidden, Invalid, NotFound } from '../errors';
 import { loopPatchSchema, loopSchema } from '../../registry/schemas';
 import type { CriterionResult, Judgement, Verdict } from '../../compliance/judge';
-import { FROM, JOINS, orderOf, whereOf, type LoopFilters } from './loop-query';
-import { demandRole, fromDbError, iso, isUuid, offsetOf, parseInput, userRef, type Actor, type PageOf, type Paging, type UserRef } from './common';
+import { fromWith, JOINS, orderOf, whereOf, type LoopFilters } from './loop-query';
+import {
+	demandRole,
+	fromDbError,
+	iso,
+	isUuid,
+	offsetOf,
+	parseInput,
+	userRef,
+	type Actor,
+	type PageOf,
+	type Paging,
+	type UserRef
+} from './common';
 import { loopSnapshot, recordAudit } from './audit';
 import { findOwner } from './people';
 import { activeDeviationCounts } from './deviations';
+import { preparedRows } from '../db/prepared';
 
 export interface LoopView {
 	id: string;
@@ -54,7 +67,12 @@ export { LOOP_SORTS, loopFiltersFrom, type LoopFilters, type LoopSort } from './
 /** A row of the loop list: the loop, its worst-case margins and every criterion it was judged on. */
 export interface LoopListItem extends LoopView {
 	/** Worst case over operating cases of the latest computed revision; null = none (or unbounded). */
-	worstCase: { phaseMarginDeg: number | null; upperGainMarginDb: number | null; delayMarginS: number | null; modulusMargin: number | null };
+	worstCase: {
+		phaseMarginDeg: number | null;
+		upperGainMarginDb: number | null;
+		delayMarginS: number | null;
+		modulusMargin: number | null;
+	};
 	/** Each target of the class against its actual value, with the shortfall (from the judgement). */
 	criteria: CriterionResult[];
 	/** Criteria short of their target, covered by a deviation or not. */
@@ -137,47 +155,68 @@ function listItem(r: ListRow, activeDeviations: number): LoopListItem {
 }
 
 /** The SQL of one page of the list (also run by bench:web under EXPLAIN). */
-export function listQuery(f: LoopFilters, limit: number, offset: number): { sql: string; params: unknown[] } {
+export function listQuery(
+	f: LoopFilters,
+	limit: number,
+	offset: number
+): { sql: string; params: unknown[] } {
 	const where = whereOf(f);
-	// Sort and count narrow rows (ids and sort keys), then fetch the wide columns (the cached
-	// judgement, the active deviations) for the one page only: sorting thousands of rows with their JSON is what costs.
-	// The total rides along as a window count: one scan of the matching rows, not two.
 	const order = orderOf(f);
+	// The page is chosen on narrow rows (ids and sort keys) with a plain ORDER BY … LIMIT, which
+	// PostgreSQL answers with a bounded top-N sort; the wide columns (the cached judgement, the
+	// active deviations) are fetched for those rows only, re-sorted by the same expressions. The
+	// total is an uncorrelated subquery, evaluated once: a window count would force a full sort.
 	return {
-		sql: `with page as (
-			select l.id, count(*) over () as total, row_number() over (${order}) as rn ${FROM} ${where.sql}
-			${order} limit ? offset ?)
-		select ${LIST_COLUMNS}, page.total,
+		sql: `with page as (select l.id ${fromWith([...where.joins, ...order.joins])} ${where.sql} ${order.sql} limit ? offset ?)
+		select ${LIST_COLUMNS},
+		       (select count(*) ${fromWith(where.joins)} ${where.sql}) as total,
 		       (select count(*)::int from deviation d where d.loop_id = l.id and d.revoked_at is null
 		          and d.starts_at <= now() and d.expires_at > now()) as active_deviations
 		from page join loop l on l.id = page.id ${JOINS}
-		order by page.rn`,
-		params: [...where.params, limit, offset]
+		${order.sql}`,
+		params: [...where.params, limit, offset, ...where.params]
 	};
 }
 
 async function pageRows(em: EntityManager, f: LoopFilters, limit: number, offset: number) {
 	const q = listQuery(f, limit, offset);
-	const rows = await em.getConnection().execute<ListRow[]>(q.sql, q.params, 'all', em.getTransactionContext());
+	const rows = await preparedRows<ListRow>(em, q.sql, q.params);
 	return { rows, items: rows.map((r) => listItem(r, r.active_deviations)) };
 }
 
 /** Rows of the list in order (the export pages through them). */
-export async function queryLoops(em: EntityManager, f: LoopFilters, limit: number, offset: number): Promise<LoopListItem[]> {
+export async function queryLoops(
+	em: EntityManager,
+	f: LoopFilters,
+	limit: number,
+	offset: number
+): Promise<LoopListItem[]> {
 	return (await pageRows(em, f, limit, offset)).items;
 }
 
 export async function countLoops(em: EntityManager, f: LoopFilters): Promise<number> {
 	const where = whereOf(f);
-	const [{ n }] = await em.getConnection().execute<{ n: number }[]>(`select count(*)::int as n ${FROM} ${where.sql}`, where.params, 'all', em.getTransactionContext());
+	const [{ n }] = await preparedRows<{ n: number }>(
+		em,
+		`select count(*)::int as n ${fromWith(where.joins)} ${where.sql}`,
+		where.params
+	);
 	return n;
 }
 
 /** One page of the list, filtered and sorted in PostgreSQL, with the number of matching loops. */
-export async function listLoops(em: EntityManager, f: LoopFilters, paging: Paging): Promise<PageOf<LoopListItem>> {
+export async function listLoops(
+	em: EntityManager,
+	f: LoopFilters,
+	paging: Paging
+): Promise<PageOf<LoopListItem>> {
 	const { rows, items } = await pageRows(em, f, paging.pageSize, offsetOf(paging));
 	// A page past the end has no row to carry the total: count separately then.
-	const total = rows.length ? Number(rows[0].total) : offsetOf(paging) ? await countLoops(em, f) : 0;
+	const total = rows.length
+		? Number(rows[0].total)
+		: offsetOf(paging)
+			? await countLoops(em, f)
+			: 0;
 	return { items, total, ...paging };
 }
 
@@ -208,7 +247,11 @@ async function refs(em: EntityManager, productKey: string, classKey: string) {
 }
 
 /** Engineers register loops they own; leads may name any owner. */
-export async function createLoop(em: EntityManager, actor: Actor, input: unknown): Promise<LoopView> {
+export async function createLoop(
+	em: EntityManager,
+	actor: Actor,
+	input: unknown
+): Promise<LoopView> {
 	demandRole(actor, 'engineer', 'register loops');
 	const data = parseInput(loopSchema, input);
 	const { product, loopClass } = await refs(em, data.product, data.class);
@@ -235,7 +278,13 @@ export async function createLoop(em: EntityManager, actor: Actor, input: unknown
 				updatedAt: now
 			});
 			await tx.flush();
-			recordAudit(tx, { actorId: actor.id, action: 'loop.create', entityType: 'loop', entityId: loop.id, after: loopSnapshot(loop) });
+			recordAudit(tx, {
+				actorId: actor.id,
+				action: 'loop.create',
+				entityType: 'loop',
+				entityId: loop.id,
+				after: loopSnapshot(loop)
+			});
 			return loop.id;
 		});
 		return getLoop(em.fork(), id);
@@ -247,22 +296,33 @@ export async function createLoop(em: EntityManager, actor: Actor, input: unknown
 export const dedupe = (tags: string[]) => [...new Set(tags.map((t) => t.trim()).filter(Boolean))];
 
 /** Edit, archive (`archived: true`) or restore (`archived: false`) one loop. */
-export async function updateLoop(em: EntityManager, actor: Actor, id: string, input: unknown): Promise<LoopView> {
+export async function updateLoop(
+	em: EntityManager,
+	actor: Actor,
+	id: string,
+	input: unknown
+): Promise<LoopView> {
 	const patch = parseInput(loopPatchSchema, input);
 	const loop = await loopById(em, id);
-	if (!canEditLoop(actor, loop)) throw new Forbidden('Only the owner, a lead or an admin may change this loop.');
+	if (!canEditLoop(actor, loop))
+		throw new Forbidden('Only the owner, a lead or an admin may change this loop.');
 	const lead = atLeast(actor.role, 'lead');
 	for (const field of ['owner', 'product', 'class'] as const) {
-		if (patch[field] !== undefined && !lead) throw new Forbidden(`Only a lead may change a loop's ${field}.`);
+		if (patch[field] !== undefined && !lead)
+			throw new Forbidden(`Only a lead may change a loop's ${field}.`);
 	}
 	const restoring = patch.archived === false;
 	const edits = Object.keys(patch).filter((k) => k !== 'archived');
-	if (loop.archivedAt && !restoring && edits.length) throw new Conflict('This loop is archived: restore it before editing.');
+	if (loop.archivedAt && !restoring && edits.length)
+		throw new Conflict('This loop is archived: restore it before editing.');
 
 	const next = await refs(em, patch.product ?? loop.product.key, patch.class ?? loop.loopClass.key);
 	const owner = patch.owner ? await findOwner(em, patch.owner) : loop.owner;
 	const key = patch.key ?? loop.key;
-	if ((key !== loop.key || next.product.id !== loop.product.id) && (await em.count(LoopSchema, { product: next.product, key }))) {
+	if (
+		(key !== loop.key || next.product.id !== loop.product.id) &&
+		(await em.count(LoopSchema, { product: next.product, key }))
+	) {
 		throw new Conflict(`${next.product.key} already has a loop ${key}.`, 'key');
 	}
 	const before = loopSnapshot(loop);
@@ -282,8 +342,19 @@ export async function updateLoop(em: EntityManager, actor: Actor, id: string, in
 			if (JSON.stringify(after) === JSON.stringify(before)) return;
 			row.updatedAt = new Date();
 			const action =
-				!before.archivedAt && after.archivedAt ? 'loop.archive' : before.archivedAt && !after.archivedAt ? 'loop.restore' : 'loop.update';
-			recordAudit(tx, { actorId: actor.id, action, entityType: 'loop', entityId: row.id, before, after });
+				!before.archivedAt && after.archivedAt
+					? 'loop.archive'
+					: before.archivedAt && !after.archivedAt
+						? 'loop.restore'
+						: 'loop.update';
+			recordAudit(tx, {
+				actorId: actor.id,
+				action,
+				entityType: 'loop',
+				entityId: row.id,
+				before,
+				after
+			});
 		});
 	} catch (error) {
 		fromDbError(error, { loop_product_key_unique: 'key' });

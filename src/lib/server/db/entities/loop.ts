@@ -3,6 +3,7 @@ import { VERDICTS, type Judgement, type Verdict } from '../../../compliance/judg
 import { UserSchema } from './user';
 import { ProductSchema } from './product';
 import { LoopClassSchema } from './loop-class';
+import { SORT_INDEXES } from '../../registry/loop-sort-keys';
 
 /**
  * One feedback loop of one product. Loops are archived, never deleted: revisions and audit
@@ -41,21 +42,22 @@ export const LoopSchema = defineEntity({
 		// not (the `failing` filter), and the largest relative shortfall among them (the
 		// `shortfall` sort): kept by judge-loops.ts with the judgement itself.
 		failingCriteria: p.array<string>().defaultRaw(`'{}'`),
-		worstShortfall: p.double().nullable()
+		worstShortfall: p.double().nullable(),
+		// The newest revision's upload time, kept by a trigger on revision inserts (migration
+		// 20261202140000_activity), so `changedSince` reads one column instead of the revisions.
+		lastRevisionAt: p.datetime().nullable()
 	},
 	uniques: [{ name: 'loop_product_key_unique', properties: ['product', 'key'] }],
 	indexes: [
 		{ properties: ['loopClass'] },
 		{ properties: ['owner'] },
 		{ properties: ['verdict'] },
-		// Dashboard filters and sorts over thousands of loops (src/lib/server/registry/loop-list.ts).
+		// Dashboard filters and sorts over thousands of loops (src/lib/server/registry/loop-query.ts).
 		{ name: 'loop_failing_criteria_gin', properties: ['failingCriteria'], type: 'gin' },
 		{ name: 'loop_verdict_changed_at_index', properties: ['verdictChangedAt'] },
-		{ name: 'loop_updated_at_index', properties: ['updatedAt'] },
-		{ name: 'loop_wc_upper_gain_margin_db_index', properties: ['wcUpperGainMarginDb'] },
-		{ name: 'loop_wc_delay_margin_s_index', properties: ['wcDelayMarginS'] },
-		{ name: 'loop_wc_modulus_margin_index', properties: ['wcModulusMargin'] },
-		{ name: 'loop_worst_shortfall_index', properties: ['worstShortfall'] }
+		{ name: 'loop_last_revision_at_index', properties: ['lastRevisionAt'] },
+		// One per sort and direction of the loop list (loop-sort-keys.ts).
+		...SORT_INDEXES.map(({ name, sql }) => ({ name, expression: sql }))
 	],
 	checks: [{ name: 'loop_key_format', expression: "key ~ '^[a-z0-9][a-z0-9._-]*$'" }]
 });

@@ -37,13 +37,4 @@ export const VerdictEventSchema = defineEntity({
 
 export type VerdictEvent = InferEntity<typeof VerdictEventSchema>;
 
-/** Verdicts from best to worst, to tell whether a change made things worse. */
-export const VERDICT_RANK: Record<Verdict, number> = {
-	compliant: 0,
-	covered: 1,
-	empty: 2,
-	pending: 2,
-	rejected: 3,
-	noncompliant: 4,
-	unstable: 5
-};
+export { VERDICT_RANK } from '../../../compliance/judge';

@@ -7,6 +7,7 @@ import { Migration20261201234928_revisions } from './Migration20261201234928_rev
 import { Migration20261202032610_reports } from './Migration20261202032610_reports';
 import { Migration20261202033500_digest } from './Migration20261202033500_digest';
 import { Migration20261202033800_dashboard } from './Migration20261202033800_dashboard';
+import { Migration20261202140000_activity } from './Migration20261202140000_activity';
 
 export const migrationsList: MigrationObject[] = [
 	{ name: 'Migration20261201224031_initial', class: Migration20261201224031_initial },
@@ -16,4 +17,5 @@ export const migrationsList: MigrationObject[] = [
 	{ name: 'Migration20261202032610_reports', class: Migration20261202032610_reports },
 	{ name: 'Migration20261202033500_digest', class: Migration20261202033500_digest },
 	{ name: 'Migration20261202033800_dashboard', class: Migration20261202033800_dashboard },
+	{ name: 'Migration20261202140000_activity', class: Migration20261202140000_activity },
 ];
