@@ -22,6 +22,7 @@ import { buildIfStale } from './lib/build';
 import { waitForHttp } from './lib/wait';
 import { mulberry32 } from './lib/loop-generator';
 import { syntheticResult } from './lib/synthetic-margins';
+import { cpuMs, parentOf, perRequest, type Family } from './lib/cpu-share';
 
 const root = resolve(import.meta.dirname, '..');
 const LOOPS = Number(process.env.BENCH_LOOPS ?? 10_000);
@@ -212,8 +213,10 @@ async function seed(env: NodeJS.ProcessEnv) {
 		}
 		console.log(`  ${name.padEnd(38)} ${ms(pct(times, 0.5))}`);
 	}
+	const [{ pid }] = await conn.execute<{ pid: number }[]>('select pg_backend_pid() as pid');
+	const postmaster = parentOf(pid);
 	await orm.close(true);
-	return { token, email: lead.email };
+	return { token, email: lead.email, postmaster };
 }
 
 /** Signs in through the /signin form like a browser and returns the session cookie. */
@@ -234,8 +237,15 @@ async function signIn(origin: string, email: string): Promise<string> {
 	return cookie;
 }
 
-async function loadMix(origin: string, token: string, name: string, path: string) {
+async function loadMix(
+	origin: string,
+	token: string,
+	name: string,
+	path: string,
+	families: Record<string, Family>
+) {
 	const times: number[] = [];
+	const cpu0 = cpuMs(families);
 	const result = await new Promise<autocannon.Result>((done, fail) => {
 		const instance = autocannon(
 			{
@@ -249,11 +259,13 @@ async function loadMix(origin: string, token: string, name: string, path: string
 		// Every response's time, for percentiles autocannon does not report (p95).
 		instance.on('response', (_client, _status, _bytes, responseTime) => times.push(responseTime));
 	});
+	const cpu = perRequest(cpu0, cpuMs(families), times.length);
 	const errors = result.errors + result.timeouts + result.non2xx;
 	const p95 = pct(times, 0.95);
 	console.log(
 		`  ${name.padEnd(38)} p50 ${ms(pct(times, 0.5))}  p95 ${ms(p95)}  p99 ${ms(pct(times, 0.99))}  ` +
-			`${result.requests.average.toFixed(0)} req/s  errors ${errors}  → p95 ${ratio(p95, 50)}`
+			`${result.requests.average.toFixed(0)} req/s  errors ${errors}  → p95 ${ratio(p95, 50)}\n` +
+			`  ${''.padEnd(38)} CPU ms per request: ${cpu}  (${(result.throughput.average / Math.max(1, result.requests.average) / 1024).toFixed(1)} kB each)`
 	);
 	return { p95, errors };
 }
@@ -302,7 +314,7 @@ async function main({ supervisor, pg, s3Port, databaseUrl }: BenchServices) {
 	console.log(
 		`\nHeadroom web benchmark (PostgreSQL ${pg.port}, S3 fake ${s3Port}, web ${webPort})`
 	);
-	const { token, email } = await seed(env);
+	const { token, email, postmaster } = await seed(env);
 	if (process.env.BENCH_HOLD === '1') {
 		// For studying query plans by hand: the seeded database stays up until SIGUSR2.
 		console.log(`\nholding: psql '${env.DATABASE_URL}' — kill -USR2 ${process.pid} to go on`);
@@ -326,7 +338,13 @@ async function main({ supervisor, pg, s3Port, databaseUrl }: BenchServices) {
 		`\nGET /api/loops, ${CONNECTIONS} connections, ${SECONDS} s per mix (target p95 ≤ 50 ms):`
 	);
 	const runs = [];
-	for (const [name, path] of mixes) runs.push(await loadMix(origin, token, name, path));
+	// Where each request's CPU goes: the web server's process group, PostgreSQL (postmaster and
+	// backends), and this process (autocannon parsing the answers).
+	const families: Record<string, Family> = {
+		web: { group: web.pid },
+		postgres: { parent: postmaster }
+	};
+	for (const [name, path] of mixes) runs.push(await loadMix(origin, token, name, path, families));
 	const worst = Math.max(...runs.map((r) => r.p95));
 	console.log(
 		`  worst p95 over the mixes: ${ms(worst)} (${ratio(worst, 50)}); errors ${runs.reduce((a, r) => a + r.errors, 0)}`

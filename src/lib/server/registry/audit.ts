@@ -100,7 +100,11 @@ export function auditFiltersFrom(params: URLSearchParams): AuditFilters {
 	};
 }
 
-export async function listAudit(em: EntityManager, f: AuditFilters, paging: Paging): Promise<PageOf<AuditView>> {
+export async function listAudit(
+	em: EntityManager,
+	f: AuditFilters,
+	paging: Paging
+): Promise<PageOf<AuditView>> {
 	const where: Record<string, unknown> = {};
 	if (f.actor === 'system') where.actor = null;
 	else if (f.actor) where.actor = isUuid(f.actor) ? f.actor : { email: f.actor.toLowerCase() };
@@ -133,7 +137,9 @@ export async function listAudit(em: EntityManager, f: AuditFilters, paging: Pagi
 /** The values the filters can take, for the /audit selects. */
 export async function auditFacets(em: EntityManager) {
 	const conn = em.getConnection();
-	const actions = await conn.execute<{ action: string }[]>('select distinct action from audit_event order by action');
+	const actions = await conn.execute<{ action: string }[]>(
+		'select distinct action from audit_event order by action'
+	);
 	const types = await conn.execute<{ entity_type: string }[]>(
 		'select distinct entity_type from audit_event order by entity_type'
 	);
@@ -141,7 +147,11 @@ export async function auditFacets(em: EntityManager) {
 		'select distinct actor_id from audit_event where actor_id is not null'
 	);
 	const actors = actorIds.length
-		? await em.find(UserSchema, { id: { $in: actorIds.map((a) => a.actor_id) } }, { orderBy: { name: 'asc' } })
+		? await em.find(
+				UserSchema,
+				{ id: { $in: actorIds.map((a) => a.actor_id) } },
+				{ orderBy: { name: 'asc' } }
+			)
 		: [];
 	return {
 		actions: actions.map((a) => a.action),

@@ -4,11 +4,26 @@ import { atLeast } from '../../auth/roles';
 import { Conflict, Invalid, NotFound } from '../errors';
 import { classSchema, classUpdateSchema, requirementSchema } from '../../registry/schemas';
 import { TARGET_KEYS, thresholdsFromJson } from '../../registry/targets';
-import { demandRole, fromDbError, offsetOf, parseInput, userRef, type Actor, type PageOf, type Paging, type UserRef } from './common';
+import {
+	demandRole,
+	fromDbError,
+	offsetOf,
+	parseInput,
+	userRef,
+	type Actor,
+	type PageOf,
+	type Paging,
+	type UserRef
+} from './common';
 import { classSnapshot, recordAudit } from './audit';
 import { findPerson } from './people';
 import { loopCounts } from './products';
-import { currentRequirements, insertVersion, requirementView, type RequirementView } from './requirements';
+import {
+	currentRequirements,
+	insertVersion,
+	requirementView,
+	type RequirementView
+} from './requirements';
 
 export interface ClassView {
 	id: string;
@@ -31,7 +46,10 @@ export async function classByKey(em: EntityManager, key: string): Promise<LoopCl
 
 async function views(em: EntityManager, rows: LoopClass[]): Promise<ClassView[]> {
 	const counts = await loopCounts(em, 'loop_class_id');
-	const reqs = await currentRequirements(em, rows.map((c) => c.id));
+	const reqs = await currentRequirements(
+		em,
+		rows.map((c) => c.id)
+	);
 	return rows.map((c) => {
 		const r = reqs.get(c.id);
 		return {
@@ -52,7 +70,12 @@ export async function listClasses(em: EntityManager, paging: Paging): Promise<Pa
 	const [rows, total] = await em.findAndCount(
 		LoopClassSchema,
 		{},
-		{ populate: ['lead'], orderBy: { key: 'asc' }, limit: paging.pageSize, offset: offsetOf(paging) }
+		{
+			populate: ['lead'],
+			orderBy: { key: 'asc' },
+			limit: paging.pageSize,
+			offset: offsetOf(paging)
+		}
 	);
 	return { items: await views(em, rows), total, ...paging };
 }
@@ -72,7 +95,11 @@ async function leadFrom(em: EntityManager, ref: string): Promise<User | null> {
  * Leads add classes. Targets may come along (`targets` with a `reason`): they become version 1
  * in the same transaction, so a class never exists half-made.
  */
-export async function createClass(em: EntityManager, actor: Actor, input: unknown): Promise<ClassView> {
+export async function createClass(
+	em: EntityManager,
+	actor: Actor,
+	input: unknown
+): Promise<ClassView> {
 	demandRole(actor, 'lead', 'add loop classes');
 	const raw = (input ?? {}) as Record<string, unknown>;
 	const { targets: rawTargets, ...rest } = raw;
@@ -80,7 +107,10 @@ export async function createClass(em: EntityManager, actor: Actor, input: unknow
 	const initial =
 		rawTargets === undefined || rawTargets === null
 			? null
-			: parseInput(requirementSchema, { reason: 'Initial targets', ...(thresholdsFromJson(rawTargets) as object) });
+			: parseInput(requirementSchema, {
+					reason: 'Initial targets',
+					...(thresholdsFromJson(rawTargets) as object)
+				});
 	if (initial && TARGET_KEYS.every((k) => initial[k] === '')) {
 		throw new Invalid('Give at least one target, or leave targets out.', 'targets');
 	}
@@ -99,7 +129,13 @@ export async function createClass(em: EntityManager, actor: Actor, input: unknow
 				createdAt: new Date()
 			});
 			await tx.flush();
-			recordAudit(tx, { actorId: actor.id, action: 'loop_class.create', entityType: 'loop_class', entityId: c.id, after: classSnapshot(c) });
+			recordAudit(tx, {
+				actorId: actor.id,
+				action: 'loop_class.create',
+				entityType: 'loop_class',
+				entityId: c.id,
+				after: classSnapshot(c)
+			});
 			if (initial) {
 				const { reason, ...targets } = initial;
 				await insertVersion(tx, actor, c, targets, reason, 1);
@@ -113,7 +149,12 @@ export async function createClass(em: EntityManager, actor: Actor, input: unknow
 }
 
 /** Name, description, lead and the open-uploads switch; the key stays. */
-export async function updateClass(em: EntityManager, actor: Actor, key: string, input: unknown): Promise<ClassView> {
+export async function updateClass(
+	em: EntityManager,
+	actor: Actor,
+	key: string,
+	input: unknown
+): Promise<ClassView> {
 	demandRole(actor, 'lead', 'edit loop classes');
 	const data = parseInput(classUpdateSchema, input);
 	const loopClass = await classByKey(em, key);
@@ -129,7 +170,14 @@ export async function updateClass(em: EntityManager, actor: Actor, key: string, 
 		});
 		const after = classSnapshot(c);
 		if (JSON.stringify(after) === JSON.stringify(before)) return;
-		recordAudit(tx, { actorId: actor.id, action: 'loop_class.update', entityType: 'loop_class', entityId: c.id, before, after });
+		recordAudit(tx, {
+			actorId: actor.id,
+			action: 'loop_class.update',
+			entityType: 'loop_class',
+			entityId: c.id,
+			before,
+			after
+		});
 	});
 	return getClass(em.fork(), key);
 }

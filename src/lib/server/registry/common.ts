@@ -62,7 +62,10 @@ export function pagingFrom(params: URLSearchParams, defaultSize = 50): Paging {
 		}
 		return n;
 	};
-	return { page: read('page', 1, 1_000_000), pageSize: read('pageSize', defaultSize, MAX_PAGE_SIZE) };
+	return {
+		page: read('page', 1, 1_000_000),
+		pageSize: read('pageSize', defaultSize, MAX_PAGE_SIZE)
+	};
 }
 
 export const offsetOf = (p: Paging) => (p.page - 1) * p.pageSize;
@@ -83,10 +86,16 @@ export function fromDbError(error: unknown, fields: Record<string, string> = {})
 		throw new Conflict('That key is already taken.', constraint ? fields[constraint] : undefined);
 	}
 	if (error instanceof CheckConstraintViolationException) {
-		throw new Invalid('A value is outside what the registry accepts.', constraint ? fields[constraint] : undefined);
+		throw new Invalid(
+			'A value is outside what the registry accepts.',
+			constraint ? fields[constraint] : undefined
+		);
 	}
 	if (error instanceof ForeignKeyConstraintViolationException) {
-		throw new Invalid('A referenced record does not exist.', constraint ? fields[constraint] : undefined);
+		throw new Invalid(
+			'A referenced record does not exist.',
+			constraint ? fields[constraint] : undefined
+		);
 	}
 	throw error;
 }

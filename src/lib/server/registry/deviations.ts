@@ -10,8 +10,26 @@ import { isActive, type DeviationInput as JudgeDeviation } from '../../complianc
 import { CRITERION_LABELS, TARGET_FIELDS, type Criterion } from '../../compliance/criteria';
 import { Conflict, Invalid, NotFound } from '../errors';
 import { deviationSchema, thresholdText } from '../../registry/schemas';
-import { CRITERION_OF, TARGET_KEYS, fieldLabel, thresholdsFromJson, isLooser, normalizeDecimal, type TargetKey, type Targets } from '../../registry/targets';
-import { demandRole, fromDbError, iso, isUuid, parseInput, userRef, type Actor, type UserRef } from './common';
+import {
+	CRITERION_OF,
+	TARGET_KEYS,
+	fieldLabel,
+	thresholdsFromJson,
+	isLooser,
+	normalizeDecimal,
+	type TargetKey,
+	type Targets
+} from '../../registry/targets';
+import {
+	demandRole,
+	fromDbError,
+	iso,
+	isUuid,
+	parseInput,
+	userRef,
+	type Actor,
+	type UserRef
+} from './common';
 import { deviationSnapshot, recordAudit } from './audit';
 import { loopById } from './loops';
 import { currentRequirement } from './requirements';
@@ -37,7 +55,8 @@ export interface DeviationView {
 /** The relaxed targets the verdict rules expect: every field of every listed criterion. */
 export function relaxedOf(d: Pick<Deviation, 'criteria'> & Targets): Targets {
 	const relaxed: Targets = {};
-	for (const c of d.criteria as Criterion[]) for (const f of TARGET_FIELDS[c]) relaxed[f] = normalizeDecimal(d[f]);
+	for (const c of d.criteria as Criterion[])
+		for (const f of TARGET_FIELDS[c]) relaxed[f] = normalizeDecimal(d[f]);
 	return relaxed;
 }
 
@@ -82,16 +101,17 @@ export async function listDeviations(em: EntityManager, loopId: string): Promise
 	return rows.map((d) => deviationView(d, now));
 }
 
-export async function activeDeviationCounts(em: EntityManager, loopIds: string[]): Promise<Map<string, number>> {
+export async function activeDeviationCounts(
+	em: EntityManager,
+	loopIds: string[]
+): Promise<Map<string, number>> {
 	if (!loopIds.length) return new Map();
-	const rows = await em
-		.getConnection()
-		.execute<{ id: string; n: number }[]>(
-			`select loop_id as id, count(*)::int as n from deviation
+	const rows = await em.getConnection().execute<{ id: string; n: number }[]>(
+		`select loop_id as id, count(*)::int as n from deviation
 			 where loop_id in (${loopIds.map(() => '?').join(', ')}) and revoked_at is null and starts_at <= now() and expires_at > now()
 			 group by loop_id`,
-			loopIds
-		);
+		loopIds
+	);
 	return new Map(rows.map((r) => [r.id, r.n]));
 }
 
@@ -110,16 +130,21 @@ export async function grantDeviation(
 	const raw = (input ?? {}) as { relaxed?: unknown };
 	const data = parseInput(deviationSchema, { ...raw, relaxed: relaxedFromJson(raw.relaxed) });
 	const loop = await loopById(em, loopId);
-	if (loop.archivedAt) throw new Conflict('This loop is archived: restore it before granting a deviation.');
+	if (loop.archivedAt)
+		throw new Conflict('This loop is archived: restore it before granting a deviation.');
 	const criteria = [...new Set(data.criteria)];
 	const requirement = await currentRequirement(em, loop.loopClass);
 	const values: Partial<Record<TargetKey, string | null>> = {};
 	for (const [key, raw] of Object.entries(data.relaxed)) {
 		const path = `relaxed.${key}`;
-		if (!(TARGET_KEYS as string[]).includes(key)) throw new Invalid(`Unknown target field ${key}.`, path);
+		if (!(TARGET_KEYS as string[]).includes(key))
+			throw new Invalid(`Unknown target field ${key}.`, path);
 		const field = key as TargetKey;
 		if (!criteria.includes(CRITERION_OF[field])) {
-			throw new Invalid(`${fieldLabel(field)} belongs to ${CRITERION_LABELS[CRITERION_OF[field]]}, which is not listed.`, path);
+			throw new Invalid(
+				`${fieldLabel(field)} belongs to ${CRITERION_LABELS[CRITERION_OF[field]]}, which is not listed.`,
+				path
+			);
 		}
 		if (raw === null || raw.trim() === '') continue;
 		const checked = thresholdText.safeParse(raw);
@@ -130,19 +155,26 @@ export async function grantDeviation(
 		const fields = TARGET_FIELDS[c];
 		const required = fields.filter((f) => normalizeDecimal(requirement?.[f]) !== null);
 		if (!required.length) {
-			throw new Invalid(`The ${loop.loopClass.name} targets set no ${CRITERION_LABELS[c].toLowerCase()}: nothing to relax.`, 'criteria');
+			throw new Invalid(
+				`The ${loop.loopClass.name} targets set no ${CRITERION_LABELS[c].toLowerCase()}: nothing to relax.`,
+				'criteria'
+			);
 		}
 		for (const f of fields) {
 			const v = values[f];
 			const req = normalizeDecimal(requirement?.[f]);
 			if (v && req && !isLooser(f, v, req)) {
-				throw new Invalid(`A deviation relaxes: ${fieldLabel(f)} ${v} asks at least as much as the target ${req}.`, `relaxed.${f}`);
+				throw new Invalid(
+					`A deviation relaxes: ${fieldLabel(f)} ${v} asks at least as much as the target ${req}.`,
+					`relaxed.${f}`
+				);
 			}
 		}
 	}
 	const startsAt = data.startsAt ? new Date(data.startsAt) : now;
 	const expiresAt = new Date(data.expiresAt);
-	if (expiresAt <= startsAt) throw new Invalid('The expiry must come after the start.', 'expiresAt');
+	if (expiresAt <= startsAt)
+		throw new Invalid('The expiry must come after the start.', 'expiresAt');
 	if (expiresAt <= now) throw new Invalid('The expiry must be in the future.', 'expiresAt');
 	try {
 		const id = await em.transactional(async (tx) => {
@@ -161,24 +193,40 @@ export async function grantDeviation(
 				startProcessedAt: startsAt <= now ? now : null
 			});
 			await tx.flush();
-			recordAudit(tx, { actorId: actor.id, action: 'deviation.grant', entityType: 'deviation', entityId: d.id, after: deviationSnapshot(d) });
+			recordAudit(tx, {
+				actorId: actor.id,
+				action: 'deviation.grant',
+				entityType: 'deviation',
+				entityId: d.id,
+				after: deviationSnapshot(d)
+			});
 			await enqueueInTx(tx, QUEUES.rejudgeLoops, { loopIds: [loop.id], cause: 'deviation' });
 			return d.id;
 		});
 		return deviationById(em.fork(), id);
 	} catch (error) {
-		fromDbError(error, { deviation_expires_after_start: 'expiresAt', deviation_criteria: 'criteria' });
+		fromDbError(error, {
+			deviation_expires_after_start: 'expiresAt',
+			deviation_criteria: 'criteria'
+		});
 	}
 }
 
 async function deviationById(em: EntityManager, id: string): Promise<DeviationView> {
-	const d = isUuid(id) ? await em.findOne(DeviationSchema, { id }, { populate: ['approvedBy', 'revokedBy'] }) : null;
+	const d = isUuid(id)
+		? await em.findOne(DeviationSchema, { id }, { populate: ['approvedBy', 'revokedBy'] })
+		: null;
 	if (!d) throw new NotFound('No such deviation.');
 	return deviationView(d);
 }
 
 /** Leads end a deviation early; the row stays, marked with who revoked it and when. */
-export async function revokeDeviation(em: EntityManager, actor: Actor, id: string, now = new Date()): Promise<DeviationView> {
+export async function revokeDeviation(
+	em: EntityManager,
+	actor: Actor,
+	id: string,
+	now = new Date()
+): Promise<DeviationView> {
 	demandRole(actor, 'lead', 'revoke deviations');
 	const found = isUuid(id) ? await em.findOne(DeviationSchema, { id }) : null;
 	if (!found) throw new NotFound('No such deviation.');
@@ -189,7 +237,14 @@ export async function revokeDeviation(em: EntityManager, actor: Actor, id: strin
 		const before = deviationSnapshot(d);
 		d.revokedAt = now;
 		d.revokedBy = tx.getReference(UserSchema, actor.id);
-		recordAudit(tx, { actorId: actor.id, action: 'deviation.revoke', entityType: 'deviation', entityId: d.id, before, after: deviationSnapshot(d) });
+		recordAudit(tx, {
+			actorId: actor.id,
+			action: 'deviation.revoke',
+			entityType: 'deviation',
+			entityId: d.id,
+			before,
+			after: deviationSnapshot(d)
+		});
 		await tx.flush();
 		await enqueueInTx(tx, QUEUES.rejudgeLoops, { loopIds: [d.loop.id], cause: 'deviation' });
 	});

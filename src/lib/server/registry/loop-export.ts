@@ -26,7 +26,12 @@ export const EXPORT_COLUMNS = [
 	'active_deviations',
 	'failing',
 	'worst_shortfall_ratio',
-	...MARGIN_COLUMNS.flatMap((c) => [`${c.csv}`, `${c.csv}_target`, `${c.csv}_shortfall`, `${c.csv}_status`]),
+	...MARGIN_COLUMNS.flatMap((c) => [
+		`${c.csv}`,
+		`${c.csv}_target`,
+		`${c.csv}_shortfall`,
+		`${c.csv}_status`
+	]),
 	'judged_at',
 	'verdict_changed_at',
 	'updated_at'
@@ -57,10 +62,15 @@ function record(l: LoopListItem): string {
 }
 
 /** Checks the size first (a 400 before any byte is sent), then streams header and rows. */
-export async function exportLoopsCsv(em: EntityManager, f: LoopFilters): Promise<{ rows: number; stream: ReadableStream<Uint8Array> }> {
+export async function exportLoopsCsv(
+	em: EntityManager,
+	f: LoopFilters
+): Promise<{ rows: number; stream: ReadableStream<Uint8Array> }> {
 	const rows = await countLoops(em, f);
 	if (rows > MAX_EXPORT_ROWS) {
-		throw new Invalid(`${rows} loops match; an export holds at most ${MAX_EXPORT_ROWS}. Narrow the filters.`);
+		throw new Invalid(
+			`${rows} loops match; an export holds at most ${MAX_EXPORT_ROWS}. Narrow the filters.`
+		);
 	}
 	const encoder = new TextEncoder();
 	let offset = 0;

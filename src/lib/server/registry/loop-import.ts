@@ -47,23 +47,35 @@ function readRows(text: string): ImportRow[] {
 	try {
 		records = parseCsv(text);
 	} catch (error) {
-		if (error instanceof CsvError) throw new Invalid(`Line ${error.line}: ${error.message}`, 'file');
+		if (error instanceof CsvError)
+			throw new Invalid(`Line ${error.line}: ${error.message}`, 'file');
 		throw error;
 	}
-	if (!records.length) throw new Invalid('The file is empty: it needs a header line and one line per loop.', 'file');
+	if (!records.length)
+		throw new Invalid('The file is empty: it needs a header line and one line per loop.', 'file');
 	const header = records[0].fields.map((h) => h.trim().toLowerCase());
 	const unknown = header.filter((h) => !(IMPORT_COLUMNS as readonly string[]).includes(h));
-	if (unknown.length) throw new Invalid(`Unknown column ${unknown.join(', ')}; the columns are ${IMPORT_COLUMNS.join(', ')}.`, 'file');
+	if (unknown.length)
+		throw new Invalid(
+			`Unknown column ${unknown.join(', ')}; the columns are ${IMPORT_COLUMNS.join(', ')}.`,
+			'file'
+		);
 	const missing = REQUIRED.filter((c) => !header.includes(c));
-	if (missing.length) throw new Invalid(`Missing column ${missing.join(', ')} in the header line.`, 'file');
+	if (missing.length)
+		throw new Invalid(`Missing column ${missing.join(', ')} in the header line.`, 'file');
 	const body = records.slice(1);
 	if (!body.length) throw new Invalid('The file has a header but no loops.', 'file');
-	if (body.length > MAX_IMPORT_ROWS) throw new TooLarge(`At most ${MAX_IMPORT_ROWS} loops per import.`);
+	if (body.length > MAX_IMPORT_ROWS)
+		throw new TooLarge(`At most ${MAX_IMPORT_ROWS} loops per import.`);
 	return body.map((r) => {
-		const get = (c: string) => (header.includes(c) ? (r.fields[header.indexOf(c)] ?? '').trim() : '');
+		const get = (c: string) =>
+			header.includes(c) ? (r.fields[header.indexOf(c)] ?? '').trim() : '';
 		const errors: ImportRowError[] = [];
 		if (r.fields.length !== header.length) {
-			errors.push({ field: 'line', message: `${r.fields.length} fields where the header has ${header.length}.` });
+			errors.push({
+				field: 'line',
+				message: `${r.fields.length} fields where the header has ${header.length}.`
+			});
 		}
 		return {
 			line: r.line,
@@ -83,33 +95,54 @@ function readRows(text: string): ImportRow[] {
 }
 
 /** Check every row; nothing is written. */
-export async function previewImport(em: EntityManager, actor: Actor, text: string): Promise<ImportPreview> {
+export async function previewImport(
+	em: EntityManager,
+	actor: Actor,
+	text: string
+): Promise<ImportPreview> {
 	demandRole(actor, 'engineer', 'import loops');
 	const rows = readRows(text);
 	const products = new Map((await em.find(ProductSchema, {})).map((p) => [p.key, p]));
 	const classes = new Map((await em.find(LoopClassSchema, {})).map((c) => [c.key, c]));
 	const users = new Map((await em.find(UserSchema, { active: true })).map((u) => [u.email, u]));
 	const existing = new Set(
-		(await em.find(LoopSchema, {}, { populate: ['product'] })).map((l) => `${l.product.key}/${l.key}`)
+		(await em.find(LoopSchema, {}, { populate: ['product'] })).map(
+			(l) => `${l.product.key}/${l.key}`
+		)
 	);
 	const seen = new Map<string, number>();
 	for (const row of rows) {
 		const parsed = loopSchema.safeParse({ ...row, owner: row.owner || actor.email });
 		if (!parsed.success) {
-			for (const issue of parsed.error.issues) row.errors.push({ field: issue.path.map(String).join('.') || 'line', message: issue.message });
+			for (const issue of parsed.error.issues)
+				row.errors.push({
+					field: issue.path.map(String).join('.') || 'line',
+					message: issue.message
+				});
 		}
-		if (row.product && !products.has(row.product)) row.errors.push({ field: 'product', message: `No product ${row.product}.` });
-		if (row.class && !classes.has(row.class)) row.errors.push({ field: 'class', message: `No loop class ${row.class}.` });
+		if (row.product && !products.has(row.product))
+			row.errors.push({ field: 'product', message: `No product ${row.product}.` });
+		if (row.class && !classes.has(row.class))
+			row.errors.push({ field: 'class', message: `No loop class ${row.class}.` });
 		const ownerEmail = row.owner || actor.email;
-		if (!users.has(ownerEmail)) row.errors.push({ field: 'owner', message: `No active user ${ownerEmail}.` });
+		if (!users.has(ownerEmail))
+			row.errors.push({ field: 'owner', message: `No active user ${ownerEmail}.` });
 		else if (!atLeast(users.get(ownerEmail)!.role, 'engineer')) {
-			row.errors.push({ field: 'owner', message: `${ownerEmail} is a viewer; loop owners need the engineer role or higher.` });
+			row.errors.push({
+				field: 'owner',
+				message: `${ownerEmail} is a viewer; loop owners need the engineer role or higher.`
+			});
 		} else if (ownerEmail !== actor.email && !atLeast(actor.role, 'lead')) {
-			row.errors.push({ field: 'owner', message: 'Engineers import loops they own; leave owner blank or use your e-mail.' });
+			row.errors.push({
+				field: 'owner',
+				message: 'Engineers import loops they own; leave owner blank or use your e-mail.'
+			});
 		}
 		const id = `${row.product}/${row.key}`;
-		if (existing.has(id)) row.errors.push({ field: 'key', message: `${row.product} already has a loop ${row.key}.` });
-		if (seen.has(id)) row.errors.push({ field: 'key', message: `Same product and key as line ${seen.get(id)}.` });
+		if (existing.has(id))
+			row.errors.push({ field: 'key', message: `${row.product} already has a loop ${row.key}.` });
+		if (seen.has(id))
+			row.errors.push({ field: 'key', message: `Same product and key as line ${seen.get(id)}.` });
 		else seen.set(id, row.line);
 	}
 	const invalid = rows.filter((r) => r.errors.length).length;
@@ -117,35 +150,49 @@ export async function previewImport(em: EntityManager, actor: Actor, text: strin
 }
 
 /** Write every row, or none: a file with any bad row is refused whole (fix it and preview again). */
-export async function commitImport(em: EntityManager, actor: Actor, text: string): Promise<{ created: number }> {
+export async function commitImport(
+	em: EntityManager,
+	actor: Actor,
+	text: string
+): Promise<{ created: number }> {
 	const preview = await previewImport(em, actor, text);
 	const bad = preview.rows.find((r) => r.errors.length);
-	if (bad) throw new Invalid(`Line ${bad.line}: ${bad.errors[0].message} (${preview.invalid} rows need fixing).`, bad.errors[0].field);
+	if (bad)
+		throw new Invalid(
+			`Line ${bad.line}: ${bad.errors[0].message} (${preview.invalid} rows need fixing).`,
+			bad.errors[0].field
+		);
 	const products = new Map((await em.find(ProductSchema, {})).map((p) => [p.key, p.id]));
 	const classes = new Map((await em.find(LoopClassSchema, {})).map((c) => [c.key, c.id]));
 	const users = new Map((await em.find(UserSchema, { active: true })).map((u) => [u.email, u.id]));
 	await em
 		.transactional(async (tx) => {
-		const now = new Date();
-		const loops = preview.rows.map((row) =>
-			tx.create(LoopSchema, {
-				product: tx.getReference(ProductSchema, products.get(row.product)!),
-				loopClass: tx.getReference(LoopClassSchema, classes.get(row.class)!),
-				owner: tx.getReference(UserSchema, users.get(row.owner || actor.email)!),
-				key: row.key,
-				name: row.name,
-				tags: dedupe(row.tags),
-				note: row.note,
-				verdict: 'empty',
-				createdAt: now,
-				updatedAt: now
-			})
-		);
-		await tx.flush();
-		for (const loop of loops) {
-			recordAudit(tx, { actorId: actor.id, action: 'loop.create', entityType: 'loop', entityId: loop.id, after: { ...loopSnapshot(loop), via: 'csv import' } });
-		}
-	})
+			const now = new Date();
+			const loops = preview.rows.map((row) =>
+				tx.create(LoopSchema, {
+					product: tx.getReference(ProductSchema, products.get(row.product)!),
+					loopClass: tx.getReference(LoopClassSchema, classes.get(row.class)!),
+					owner: tx.getReference(UserSchema, users.get(row.owner || actor.email)!),
+					key: row.key,
+					name: row.name,
+					tags: dedupe(row.tags),
+					note: row.note,
+					verdict: 'empty',
+					createdAt: now,
+					updatedAt: now
+				})
+			);
+			await tx.flush();
+			for (const loop of loops) {
+				recordAudit(tx, {
+					actorId: actor.id,
+					action: 'loop.create',
+					entityType: 'loop',
+					entityId: loop.id,
+					after: { ...loopSnapshot(loop), via: 'csv import' }
+				});
+			}
+		})
 		// Someone registered one of these keys between the preview and this commit.
 		.catch((error) => fromDbError(error, { loop_product_key_unique: 'key' }));
 	return { created: preview.rows.length };

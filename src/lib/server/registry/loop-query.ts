@@ -78,12 +78,12 @@ const JOIN_SQL: Record<Alias, string> = {
 
 /** The tables a loop row is listed, filtered and sorted with (aliases l, p, c, u). */
 export const JOINS = Object.values(JOIN_SQL).join('\n\t');
-export const FROM = `from loop l ${JOINS}`;
 
 /**
- * `from loop l` with only the joins the given aliases need: every loop has exactly one product,
- * class and owner (not-null foreign keys), so leaving an unused join out changes no row, and
- * the planner cannot drop an inner join on its own.
+ * `from loop l` with only the joins the given aliases need (filters never need one; a sort on
+ * product, class or owner does): every loop has exactly one product, class and owner (not-null
+ * foreign keys), so leaving an unused join out changes no row, and the planner cannot drop an
+ * inner join on its own.
  */
 export const fromWith = (aliases: Iterable<Alias>) => {
 	const need = new Set(aliases);
@@ -99,30 +99,22 @@ const like = (q: string) => `%${q.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
 export function whereOf(
 	f: LoopFilters,
 	omit: (keyof LoopFilters)[] = []
-): { sql: string; params: unknown[]; joins: Alias[] } {
+): { sql: string; params: unknown[] } {
 	const clauses: string[] = [];
 	const params: unknown[] = [];
-	const joins: Alias[] = [];
 	const add = (sql: string, ...values: unknown[]) => {
 		clauses.push(sql);
 		params.push(...values);
 	};
 	const use = (k: keyof LoopFilters) => f[k] !== undefined && !omit.includes(k);
 	if (use('q')) add('(l.key ilike ? or l.name ilike ?)', like(f.q!), like(f.q!));
-	if (use('product')) {
-		add('p.key = ?', f.product);
-		joins.push('p');
-	}
-	if (use('class')) {
-		add('c.key = ?', f.class);
-		joins.push('c');
-	}
+	// A product, class or owner named by key or e-mail is looked up once (an InitPlan) and the
+	// loops filtered on their own indexed column, with no join.
+	if (use('product')) add('l.product_id = (select id from product where key = ?)', f.product);
+	if (use('class')) add('l.loop_class_id = (select id from loop_class where key = ?)', f.class);
 	if (use('owner')) {
 		if (isUuid(f.owner!)) add('l.owner_id = ?', f.owner);
-		else {
-			add('u.email = ?', f.owner!.toLowerCase());
-			joins.push('u');
-		}
+		else add('l.owner_id = (select id from app_user where email = ?)', f.owner!.toLowerCase());
 	}
 	if (use('verdict')) add('l.verdict = ?', f.verdict);
 	if (use('failing')) add('l.failing_criteria @> array[?::text]', f.failing);
@@ -134,7 +126,7 @@ export function whereOf(
 	const archived = omit.includes('archived') ? 'all' : (f.archived ?? 'active');
 	if (archived !== 'all')
 		add(archived === 'active' ? 'l.archived_at is null' : 'l.archived_at is not null');
-	return { sql: clauses.length ? `where ${clauses.join(' and ')}` : '', params, joins };
+	return { sql: clauses.length ? `where ${clauses.join(' and ')}` : '', params };
 }
 
 /** `order by …`: loops without a value (not computed, or unbounded) come last either way. */

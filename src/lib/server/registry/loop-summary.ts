@@ -7,7 +7,7 @@
  */
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { VERDICTS, type Verdict } from '../../compliance/judge';
-import { FROM, whereOf, type LoopFilters } from './loop-query';
+import { fromWith, whereOf, type LoopFilters } from './loop-query';
 
 export type VerdictCounts = Record<Verdict, number>;
 
@@ -30,11 +30,13 @@ const zero = (): VerdictCounts => Object.fromEntries(VERDICTS.map((v) => [v, 0])
 
 async function grouped(em: EntityManager, f: LoopFilters, dim: 'p' | 'c'): Promise<GroupCount[]> {
 	const where = whereOf(f, [dim === 'p' ? 'product' : 'class', 'verdict']);
-	const rows = await em.getConnection().execute<{ key: string; name: string; verdict: Verdict; n: number }[]>(
-		`select ${dim}.key, ${dim}.name, l.verdict, count(*)::int as n ${FROM} ${where.sql}
+	const rows = await em
+		.getConnection()
+		.execute<{ key: string; name: string; verdict: Verdict; n: number }[]>(
+			`select ${dim}.key, ${dim}.name, l.verdict, count(*)::int as n ${fromWith([dim])} ${where.sql}
 		 group by ${dim}.key, ${dim}.name, l.verdict order by ${dim}.key`,
-		where.params
-	);
+			where.params
+		);
 	const groups = new Map<string, GroupCount>();
 	for (const r of rows) {
 		const g = groups.get(r.key) ?? { key: r.key, name: r.name, total: 0, verdicts: zero() };
@@ -50,7 +52,10 @@ export async function loopSummary(em: EntityManager, f: LoopFilters): Promise<Lo
 	const [rows, products, classes] = await Promise.all([
 		em
 			.getConnection()
-			.execute<{ verdict: Verdict; n: number }[]>(`select l.verdict, count(*)::int as n ${FROM} ${where.sql} group by l.verdict`, where.params),
+			.execute<{ verdict: Verdict; n: number }[]>(
+				`select l.verdict, count(*)::int as n from loop l ${where.sql} group by l.verdict`,
+				where.params
+			),
 		grouped(em, f, 'p'),
 		grouped(em, f, 'c')
 	]);

@@ -20,12 +20,18 @@ export interface Person extends UserRef {
 /** Active users of at least `minimum` role, for owner and lead pickers. */
 export async function listPeople(em: EntityManager, minimum: Role = 'viewer'): Promise<Person[]> {
 	const users = await em.find(UserSchema, { active: true }, { orderBy: { name: 'asc' } });
-	return users.filter((u) => atLeast(u.role, minimum)).map((u) => ({ ...userRef(u), role: u.role }));
+	return users
+		.filter((u) => atLeast(u.role, minimum))
+		.map((u) => ({ ...userRef(u), role: u.role }));
 }
 
 /** Owners edit their loops and upload revisions, so they need at least the engineer role. */
 export async function findOwner(em: EntityManager, ref: string): Promise<User> {
 	const user = await findPerson(em, ref, 'owner');
-	if (!atLeast(user.role, 'engineer')) throw new Invalid(`${user.name} is a ${user.role}; loop owners need the engineer role or higher.`, 'owner');
+	if (!atLeast(user.role, 'engineer'))
+		throw new Invalid(
+			`${user.name} is a ${user.role}; loop owners need the engineer role or higher.`,
+			'owner'
+		);
 	return user;
 }

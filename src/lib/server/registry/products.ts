@@ -2,7 +2,15 @@ import type { EntityManager } from '@mikro-orm/postgresql';
 import { ProductSchema, type Product } from '../db/entities';
 import { Conflict, NotFound } from '../errors';
 import { productSchema } from '../../registry/schemas';
-import { demandRole, fromDbError, offsetOf, parseInput, type Actor, type PageOf, type Paging } from './common';
+import {
+	demandRole,
+	fromDbError,
+	offsetOf,
+	parseInput,
+	type Actor,
+	type PageOf,
+	type Paging
+} from './common';
 import { productSnapshot, recordAudit } from './audit';
 
 export interface ProductView {
@@ -14,7 +22,10 @@ export interface ProductView {
 	loopCount: number;
 }
 
-async function loopCounts(em: EntityManager, column: 'product_id' | 'loop_class_id'): Promise<Map<string, number>> {
+async function loopCounts(
+	em: EntityManager,
+	column: 'product_id' | 'loop_class_id'
+): Promise<Map<string, number>> {
 	const rows = await em
 		.getConnection()
 		.execute<{ id: string; n: number }[]>(
@@ -32,7 +43,10 @@ const view = (p: Product, counts: Map<string, number>): ProductView => ({
 	loopCount: counts.get(p.id) ?? 0
 });
 
-export async function listProducts(em: EntityManager, paging: Paging): Promise<PageOf<ProductView>> {
+export async function listProducts(
+	em: EntityManager,
+	paging: Paging
+): Promise<PageOf<ProductView>> {
 	const [rows, total] = await em.findAndCount(
 		ProductSchema,
 		{},
@@ -49,7 +63,11 @@ export async function productByKey(em: EntityManager, key: string): Promise<Prod
 }
 
 /** Leads and admins add products; the key is permanent (URLs and CSV imports use it). */
-export async function createProduct(em: EntityManager, actor: Actor, input: unknown): Promise<ProductView> {
+export async function createProduct(
+	em: EntityManager,
+	actor: Actor,
+	input: unknown
+): Promise<ProductView> {
 	demandRole(actor, 'lead', 'add products');
 	const data = parseInput(productSchema, input);
 	if (await em.count(ProductSchema, { key: data.key })) {

@@ -10,8 +10,25 @@ import { QUEUES } from '../jobs/queues';
 import { RequirementSchema, UserSchema, type LoopClass, type Requirement } from '../db/entities';
 import { Conflict, Invalid, NotFound } from '../errors';
 import { requirementSchema } from '../../registry/schemas';
-import { compareTargets, fullTargets, sameTargets, thresholdsFromJson, type TargetChange, type Targets } from '../../registry/targets';
-import { demandRole, fromDbError, offsetOf, parseInput, userRef, type Actor, type PageOf, type Paging, type UserRef } from './common';
+import {
+	compareTargets,
+	fullTargets,
+	sameTargets,
+	thresholdsFromJson,
+	type TargetChange,
+	type Targets
+} from '../../registry/targets';
+import {
+	demandRole,
+	fromDbError,
+	offsetOf,
+	parseInput,
+	userRef,
+	type Actor,
+	type PageOf,
+	type Paging,
+	type UserRef
+} from './common';
 import { recordAudit, requirementSnapshot } from './audit';
 import { classByKey } from './classes';
 
@@ -36,45 +53,69 @@ export const requirementView = (r: Requirement, classKey: string): RequirementVi
 });
 
 /** The version in force for each class id given (classes without targets are absent). */
-export async function currentRequirements(em: EntityManager, classIds: string[]): Promise<Map<string, Requirement>> {
+export async function currentRequirements(
+	em: EntityManager,
+	classIds: string[]
+): Promise<Map<string, Requirement>> {
 	if (!classIds.length) return new Map();
-	const ids = await em
-		.getConnection()
-		.execute<{ id: string }[]>(
-			`select distinct on (loop_class_id) id from requirement where loop_class_id in (${classIds.map(() => '?').join(', ')})
+	const ids = await em.getConnection().execute<{ id: string }[]>(
+		`select distinct on (loop_class_id) id from requirement where loop_class_id in (${classIds.map(() => '?').join(', ')})
 			 order by loop_class_id, version desc`,
-			classIds
-		);
+		classIds
+	);
 	const rows = ids.length
-		? await em.find(RequirementSchema, { id: { $in: ids.map((r) => r.id) } }, { populate: ['author'] })
+		? await em.find(
+				RequirementSchema,
+				{ id: { $in: ids.map((r) => r.id) } },
+				{ populate: ['author'] }
+			)
 		: [];
 	return new Map(rows.map((r) => [r.loopClass.id, r]));
 }
 
-export async function currentRequirement(em: EntityManager, loopClass: LoopClass): Promise<Requirement | null> {
+export async function currentRequirement(
+	em: EntityManager,
+	loopClass: LoopClass
+): Promise<Requirement | null> {
 	return (await currentRequirements(em, [loopClass.id])).get(loopClass.id) ?? null;
 }
 
-export async function getRequirement(em: EntityManager, classKey: string): Promise<RequirementView> {
+export async function getRequirement(
+	em: EntityManager,
+	classKey: string
+): Promise<RequirementView> {
 	const loopClass = await classByKey(em, classKey);
 	const current = await currentRequirement(em, loopClass);
 	if (!current) throw new NotFound(`Class ${classKey} has no margin targets yet.`);
 	return requirementView(current, classKey);
 }
 
-export async function getRequirementVersion(em: EntityManager, classKey: string, version: number): Promise<RequirementView> {
+export async function getRequirementVersion(
+	em: EntityManager,
+	classKey: string,
+	version: number
+): Promise<RequirementView> {
 	const loopClass = await classByKey(em, classKey);
 	const row = await em.findOne(RequirementSchema, { loopClass, version }, { populate: ['author'] });
 	if (!row) throw new NotFound(`Class ${classKey} has no version ${version}.`);
 	return requirementView(row, classKey);
 }
 
-export async function requirementHistory(em: EntityManager, classKey: string, paging: Paging): Promise<PageOf<RequirementView>> {
+export async function requirementHistory(
+	em: EntityManager,
+	classKey: string,
+	paging: Paging
+): Promise<PageOf<RequirementView>> {
 	const loopClass = await classByKey(em, classKey);
 	const [rows, total] = await em.findAndCount(
 		RequirementSchema,
 		{ loopClass },
-		{ populate: ['author'], orderBy: { version: 'desc' }, limit: paging.pageSize, offset: offsetOf(paging) }
+		{
+			populate: ['author'],
+			orderBy: { version: 'desc' },
+			limit: paging.pageSize,
+			offset: offsetOf(paging)
+		}
 	);
 	return { items: rows.map((r) => requirementView(r, classKey)), total, ...paging };
 }
@@ -123,7 +164,9 @@ export async function setRequirement(
 	const loopClass = await classByKey(em, classKey);
 	const current = await currentRequirement(em, loopClass);
 	if (basedOn !== undefined && (current?.version ?? 0) !== basedOn) {
-		throw new Conflict(`Version ${current?.version} was saved meanwhile; reload to see it before changing the targets.`);
+		throw new Conflict(
+			`Version ${current?.version} was saved meanwhile; reload to see it before changing the targets.`
+		);
 	}
 	if (current && sameTargets(current, targets)) {
 		throw new Invalid(`These targets are the same as version ${current.version}: nothing to save.`);
@@ -136,7 +179,9 @@ export async function setRequirement(
 		return requirementView(row, classKey);
 	} catch (error) {
 		if (error instanceof Error && error.message.includes('requirement_class_version_unique')) {
-			throw new Conflict('Someone saved new targets for this class at the same moment; reload and try again.');
+			throw new Conflict(
+				'Someone saved new targets for this class at the same moment; reload and try again.'
+			);
 		}
 		fromDbError(error);
 	}
@@ -148,7 +193,12 @@ export interface VersionComparison {
 	changes: TargetChange[];
 }
 
-export async function compareVersions(em: EntityManager, classKey: string, a: number, b: number): Promise<VersionComparison> {
+export async function compareVersions(
+	em: EntityManager,
+	classKey: string,
+	a: number,
+	b: number
+): Promise<VersionComparison> {
 	const va = await getRequirementVersion(em, classKey, a);
 	const vb = await getRequirementVersion(em, classKey, b);
 	return { a: va, b: vb, changes: compareTargets(va.targets, vb.targets) };

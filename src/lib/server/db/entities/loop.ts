@@ -55,7 +55,12 @@ export const LoopSchema = defineEntity({
 		// Dashboard filters and sorts over thousands of loops (src/lib/server/registry/loop-query.ts).
 		{ name: 'loop_failing_criteria_gin', properties: ['failingCriteria'], type: 'gin' },
 		{ name: 'loop_verdict_changed_at_index', properties: ['verdictChangedAt'] },
-		{ name: 'loop_last_revision_at_index', properties: ['lastRevisionAt'] },
+		// changedSince: an index-only scan for the OR of both columns (migration 20261202140000).
+		{
+			name: 'loop_changed_index',
+			expression:
+				'create index "loop_changed_index" on "loop" ("verdict_changed_at", "last_revision_at") where "archived_at" is null'
+		},
 		// One per sort and direction of the loop list (loop-sort-keys.ts).
 		...SORT_INDEXES.map(({ name, sql }) => ({ name, expression: sql }))
 	],
