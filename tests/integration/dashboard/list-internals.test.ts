@@ -42,7 +42,12 @@ describe('loop.last_revision_at', () => {
 		expect(await lastRevisionAt(loops.pm.id)).toBe('2026-06-01T00:00:00.000Z');
 		expect(await lastRevisionAt(loops.empty.id)).toBeNull();
 		// An older upload (a back-filled revision) does not move it back.
-		await addComputedRevision(r, loops.pm.id, { phaseMarginDeg: 60 }, '2026-02-01T00:00:00.000Z');
+		await addComputedRevision(
+			r,
+			loops.pm.id,
+			{ phaseMarginDeg: 60, upperGainMarginDb: 10, delayMarginSeconds: 0.005, modulusMargin: 0.7 },
+			'2026-02-01T00:00:00.000Z'
+		);
 		expect(await lastRevisionAt(loops.pm.id)).toBe('2026-06-01T00:00:00.000Z');
 	});
 

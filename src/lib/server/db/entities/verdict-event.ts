@@ -1,5 +1,5 @@
 import { defineEntity, p, type InferEntity } from '@mikro-orm/core';
-import { VERDICTS, type CriterionResult, type Verdict } from '../../../compliance/judge';
+import { VERDICTS, type CriterionResult } from '../../../compliance/judge';
 import { LoopSchema } from './loop';
 import { RevisionSchema } from './revision';
 import { RequirementSchema } from './requirement';
