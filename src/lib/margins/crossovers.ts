@@ -13,7 +13,8 @@ import { gainPolyU, phasePolyU, shiftTo, thetaFromU } from './shifted';
 import { maxAbs, type Poly } from './polynomial';
 import type { ContinuousEval, LoopEval } from './rational-eval';
 import { chebyshevRealRoots } from './chebyshev';
-import { polyRoots } from './roots';
+import { polyRoots, type Roots } from './roots';
+import { reflectedRoots } from './reflect';
 import { noPositiveRoots, noRootsOnSegment } from './descartes';
 import { hypot } from './hypot';
 
@@ -29,22 +30,28 @@ const ACCEPT = 1e-9;
 const SEGMENT = 2.5;
 const NEAR_REAL = 1e-2;
 
+/** No root near the real axis in [lo, hi] (Descartes–Obreshkoff): no eigenvalues needed. */
+function certifiedEmpty(p: Poly, lo: number, hi: number): boolean {
+	return hi === Infinity
+		? lo === 0 && noPositiveRoots(p)
+		: lo > -1e-9 && hi < SEGMENT && noRootsOnSegment(p, SEGMENT);
+}
+
+const needsRoots = (p: Poly, lo: number, hi: number): boolean =>
+	p.length >= 2 && maxAbs(p) !== 0 && !certifiedEmpty(p, lo, hi);
+
+/** The roots a real-root search in [lo, hi] must look at; null when there are none. */
+const searchedRoots = (p: Poly, lo: number, hi: number): Roots | null =>
+	needsRoots(p, lo, hi) ? polyRoots(p) : null;
+
 /**
  * Real parts of the roots in [lo, hi] that are real or nearly so. Two close real roots (a nearly
  * tangent crossing) can come out of rounding as a pair x ± iy: x − y and x + y are tried as well,
  * and only L itself decides which candidates are crossings.
  */
-function realRootsIn(p: Poly, lo: number, hi: number): number[] {
-	if (p.length < 2 || maxAbs(p) === 0) return [];
-	// no root near the real axis there (Descartes–Obreshkoff): no eigenvalues needed
-	if (
-		hi === Infinity
-			? lo === 0 && noPositiveRoots(p)
-			: lo > -1e-9 && hi < SEGMENT && noRootsOnSegment(p, SEGMENT)
-	)
-		return [];
-	const r = polyRoots(p);
+function nearRealIn(r: Roots | null, lo: number, hi: number): number[] {
 	const out: number[] = [];
+	if (!r) return out;
 	for (let i = 0; i < r.re.length; i++) {
 		const x = r.re[i];
 		const y = r.im[i];
@@ -56,6 +63,9 @@ function realRootsIn(p: Poly, lo: number, hi: number): number[] {
 	}
 	return out;
 }
+
+const realRootsIn = (p: Poly, lo: number, hi: number): number[] =>
+	nearRealIn(searchedRoots(p, lo, hi), lo, hi);
 
 /** Fujiwara's bound on the root magnitudes of p (ascending). */
 export function rootBound(p: Poly): number {
@@ -200,26 +210,47 @@ const sumAbs = (p: Poly) => p.reduce((s, x) => s + Math.abs(x), 0);
 /**
  * Candidate θ of the gain (|L| = 1) and phase (L real) crossings of g·N/D on the unit circle:
  * the lower half of the circle from the polynomials in u = |z − 1|², the upper half from those
- * in |z + 1|², each built on coefficients shifted exactly to its end.
+ * in |z + 1|², each built on coefficients shifted exactly to its end. When both halves need
+ * roots, the lower half's eigenvalues serve the upper half too (reflect.ts).
  */
 function circleCandidates(numW: Poly, denW: Poly, g: number): { gain: number[]; phase: number[] } {
-	const gain: number[] = [];
-	const phase: number[] = [];
-	for (const c of [1, -1] as const) {
-		// from w = z − 1 to v = z + 1 = w + 2, exactly
-		const n = c === 1 ? numW : shiftTo(numW, -2);
-		const d = c === 1 ? denW : shiftTo(denW, -2);
-		const scale = (g * sumAbs(n)) ** 2 + sumAbs(d) ** 2;
-		const G = gainPolyU(n, d, g, c);
-		const Q = phasePolyU(n, d, c);
-		// the two halves meet at u = 2; the end points themselves are judged separately
-		if (!vanishes(G, scale))
-			for (const u of realRootsIn(G, c === 1 ? 1e-300 : -1e-12, 2 + 1e-6))
-				gain.push(thetaFromU(u, c));
-		if (!vanishes(Q, scale))
-			for (const u of realRootsIn(Q, 1e-300, 2 + 1e-6)) phase.push(thetaFromU(u, c));
-	}
+	const nV = shiftTo(numW, -2);
+	const dV = shiftTo(denW, -2);
+	const scaleOf = (n: Poly, d: Poly) => (g * sumAbs(n)) ** 2 + sumAbs(d) ** 2;
+	const [scaleW, scaleV] = [scaleOf(numW, denW), scaleOf(nV, dV)];
+	// the two halves meet at u = 2; the end points themselves are judged separately
+	const gain = bothHalves(
+		gainPolyU(numW, denW, g, 1),
+		gainPolyU(nV, dV, g, -1),
+		[scaleW, scaleV],
+		[1e-300, -1e-12]
+	);
+	const phase = bothHalves(
+		phasePolyU(numW, denW, 1),
+		phasePolyU(nV, dV, -1),
+		[scaleW, scaleV],
+		[1e-300, 1e-300]
+	);
 	return { gain, phase };
+}
+
+/** θ of the near-real roots of P₊ (lower half) and P₋ (upper half) in [lo, 2 + 1e-6]. */
+function bothHalves(
+	plus: Poly,
+	minus: Poly,
+	[scaleW, scaleV]: [number, number],
+	[loW, loV]: [number, number]
+): number[] {
+	const HI = 2 + 1e-6;
+	const rootsW = vanishes(plus, scaleW) ? null : searchedRoots(plus, loW, HI);
+	const rootsV =
+		vanishes(minus, scaleV) || !needsRoots(minus, loV, HI)
+			? null
+			: ((rootsW && reflectedRoots(minus, rootsW, plus.length - 1)) ?? polyRoots(minus));
+	return [
+		...nearRealIn(rootsW, loW, HI).map((u) => thetaFromU(u, 1)),
+		...nearRealIn(rootsV, loV, HI).map((u) => thetaFromU(u, -1))
+	];
 }
 
 /** The same from Chebyshev series in x = cos θ: well conditioned at any order. */
