@@ -82,6 +82,9 @@ type Residual = (ev: LoopEval) => number;
 const gainResidual: Residual = (ev) => 0.5 * Math.log(ev.re * ev.re + ev.im * ev.im);
 const phaseResidual: Residual = (ev) => Math.atan2(-ev.im, -ev.re);
 
+/** Relative distance beyond which a polished crossing no longer stands for its algebraic estimate. */
+const WANDER_LIMIT = 1e-4;
+
 /**
  * Newton on the residual in ln f (continuous, and low sampled frequencies) or in θ (the upper
  * half of the sampled band), with backtracking; returns the polished point and its residual.
@@ -102,6 +105,8 @@ function polish(ev: LoopEval, f0: number, residual: Residual, phase: boolean): [
 		let improved = false;
 		for (let back = 0; back < 4; back++) {
 			const g = logVar ? f * Math.exp(step) : Math.min(top, Math.max(1e-300, f + step));
+			// a step below the spacing of doubles leaves f where it is: no shorter one can move it
+			if (g === f) break;
 			ev.withSlope(g);
 			const rg = residual(ev);
 			if (Math.abs(rg) < Math.abs(r)) {
@@ -112,7 +117,10 @@ function polish(ev: LoopEval, f0: number, residual: Residual, phase: boolean): [
 			}
 			step *= 0.5;
 		}
-		if (!improved) break;
+		// confirm() discards a polish that ends beyond WANDER_LIMIT of its start; one that has
+		// gone a hundred times as far (typically a root where L is real and positive, walking
+		// towards −180°) is not followed further
+		if (!improved || Math.abs(f - f0) > 100 * WANDER_LIMIT * f0) break;
 	}
 	ev.at(f);
 	return [f, Math.abs(residual(ev))];
@@ -135,13 +143,13 @@ function confirm(
 	for (const c of candidates) {
 		if (!(c > 0) || !Number.isFinite(c)) continue;
 		let [f, r] = polish(ev, c, residual, phase);
-		if (Math.abs(f - c) > 1e-4 * c) {
+		if (Math.abs(f - c) > WANDER_LIMIT * c) {
 			// Newton wandered (towards another root): judge the algebraic estimate on its own
 			ev.at(c);
 			[f, r] = [c, Math.abs(residual(ev))];
 		}
 		if (r > ACCEPT) continue;
-		ev.at(f);
+		// ev is at f (polish leaves it there)
 		if (phase && !(ev.re < 0 && ev.denRelative > ON_POLE && ev.numRelative > ON_POLE)) continue;
 		out.push({ f, re: ev.re, im: ev.im });
 	}

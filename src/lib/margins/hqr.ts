@@ -62,13 +62,14 @@ export function hqr(a: Float64Array, n: number, wr: Float64Array, wi: Float64Arr
 	let p = 0;
 	let q = 0;
 	let r = 0;
-	let x: number;
-	let y: number;
-	let z: number;
-	let ww: number;
+	// initialised, so V8 keeps them as raw doubles (an undefined start would box every update)
+	let x = 0;
+	let y = 0;
+	let z = 0;
+	let ww = 0;
 	while (nn >= 1) {
 		let its = 0;
-		let l: number;
+		let l = nn;
 		do {
 			for (l = nn; l >= 2; l--) {
 				let s = Math.abs(a[(l - 1) * w + l - 1]) + Math.abs(a[l * w + l]);
@@ -117,7 +118,7 @@ export function hqr(a: Float64Array, n: number, wr: Float64Array, wi: Float64Arr
 						}
 					}
 					++its;
-					let m: number;
+					let m = nn - 2;
 					for (m = nn - 2; m >= l; m--) {
 						z = a[m * w + m];
 						r = x - z;
