@@ -62,14 +62,13 @@ export function hqr(a: Float64Array, n: number, wr: Float64Array, wi: Float64Arr
 	let p = 0;
 	let q = 0;
 	let r = 0;
-	// initialised, so V8 keeps them as raw doubles (an undefined start would box every update)
-	let x = 0;
-	let y = 0;
-	let z = 0;
-	let ww = 0;
+	let x: number;
+	let y: number;
+	let z: number;
+	let ww: number;
 	while (nn >= 1) {
 		let its = 0;
-		let l = nn;
+		let l: number;
 		do {
 			for (l = nn; l >= 2; l--) {
 				let s = Math.abs(a[(l - 1) * w + l - 1]) + Math.abs(a[l * w + l]);
@@ -118,7 +117,7 @@ export function hqr(a: Float64Array, n: number, wr: Float64Array, wi: Float64Arr
 						}
 					}
 					++its;
-					let m = nn - 2;
+					let m: number;
 					for (m = nn - 2; m >= l; m--) {
 						z = a[m * w + m];
 						r = x - z;
