@@ -10,12 +10,12 @@ import {
 	sampledPhaseSeries
 } from './crossover-polys';
 import { gainPolyU, phasePolyU, shiftTo, thetaFromU } from './shifted';
-import { maxAbs, type Poly } from './polynomial';
+import { maxAbs, rootBound, type Poly } from './polynomial';
 import type { ContinuousEval, LoopEval } from './rational-eval';
 import { chebyshevRealRoots } from './chebyshev';
 import { polyRoots, type Roots } from './roots';
 import { reflectedRoots } from './reflect';
-import { noPositiveRoots, noRootsOnSegment } from './descartes';
+import { loneRoot, noPositiveRoots, noRootsOnSegment } from './descartes';
 import { hypot } from './hypot';
 
 /** A point of the frequency axis: f is ω in rad/s (continuous) or θ = ωT in rad (sampled). */
@@ -40,9 +40,19 @@ function certifiedEmpty(p: Poly, lo: number, hi: number): boolean {
 const needsRoots = (p: Poly, lo: number, hi: number): boolean =>
 	p.length >= 2 && maxAbs(p) !== 0 && !certifiedEmpty(p, lo, hi);
 
-/** The roots a real-root search in [lo, hi] must look at; null when there are none. */
-const searchedRoots = (p: Poly, lo: number, hi: number): Roots | null =>
-	needsRoots(p, lo, hi) ? polyRoots(p) : null;
+/**
+ * The roots a real-root search in [lo, hi] must look at; null when there are none. When the
+ * coefficients certify a single root in the searched sector or lens, that real root alone, found
+ * by bracketing: no eigenvalues needed either.
+ */
+function searchedRoots(p: Poly, lo: number, hi: number): Roots | null {
+	if (!needsRoots(p, lo, hi)) return null;
+	const x =
+		lo >= 0 && (hi === Infinity || hi < SEGMENT)
+			? loneRoot(p, hi === Infinity ? hi : SEGMENT)
+			: null;
+	return x === null ? polyRoots(p) : { re: Float64Array.of(x), im: Float64Array.of(0) };
+}
 
 /**
  * Real parts of the roots in [lo, hi] that are real or nearly so. Two close real roots (a nearly
@@ -66,14 +76,6 @@ function nearRealIn(r: Roots | null, lo: number, hi: number): number[] {
 
 const realRootsIn = (p: Poly, lo: number, hi: number): number[] =>
 	nearRealIn(searchedRoots(p, lo, hi), lo, hi);
-
-/** Fujiwara's bound on the root magnitudes of p (ascending). */
-export function rootBound(p: Poly): number {
-	const n = p.length - 1;
-	let bound = 0;
-	for (let k = 1; k <= n; k++) bound = Math.max(bound, Math.abs(p[n - k] / p[n]) ** (1 / k));
-	return 2 * bound;
-}
 
 /** True when p is zero up to rounding relative to the terms it was formed from. */
 const vanishes = (p: Poly, scale: number) => maxAbs(p) <= 1e-13 * scale;
@@ -251,10 +253,12 @@ function bothHalves(
 ): number[] {
 	const HI = 2 + 1e-6;
 	const rootsW = vanishes(plus, scaleW) ? null : searchedRoots(plus, loW, HI);
+	// reflection needs all of P₊'s roots (not a lone one found by bracketing)
+	const all = rootsW && rootsW.re.length === plus.length - 1 ? rootsW : null;
 	const rootsV =
 		vanishes(minus, scaleV) || !needsRoots(minus, loV, HI)
 			? null
-			: ((rootsW && reflectedRoots(minus, rootsW, plus.length - 1)) ?? polyRoots(minus));
+			: ((all && reflectedRoots(minus, all, plus.length - 1)) ?? searchedRoots(minus, loV, HI));
 	return [
 		...nearRealIn(rootsW, loW, HI).map((u) => thetaFromU(u, 1)),
 		...nearRealIn(rootsV, loV, HI).map((u) => thetaFromU(u, -1))
