@@ -10,11 +10,12 @@ import {
 	sampledPhaseSeries
 } from './crossover-polys';
 import { gainPolyU, phasePolyU, shiftTo, thetaFromU } from './shifted';
-import { maxAbs, type Poly } from './polynomial';
+import { maxAbs, rootBound, type Poly } from './polynomial';
 import type { ContinuousEval, LoopEval } from './rational-eval';
 import { chebyshevRealRoots } from './chebyshev';
-import { polyRoots } from './roots';
-import { noPositiveRoots, noRootsOnSegment } from './descartes';
+import { polyRoots, type Roots } from './roots';
+import { reflectedRoots } from './reflect';
+import { loneRoot, noPositiveRoots, noRootsOnSegment } from './descartes';
 import { hypot } from './hypot';
 
 /** A point of the frequency axis: f is ω in rad/s (continuous) or θ = ωT in rad (sampled). */
@@ -29,22 +30,38 @@ const ACCEPT = 1e-9;
 const SEGMENT = 2.5;
 const NEAR_REAL = 1e-2;
 
+/** No root near the real axis in [lo, hi] (Descartes–Obreshkoff): no eigenvalues needed. */
+function certifiedEmpty(p: Poly, lo: number, hi: number): boolean {
+	return hi === Infinity
+		? lo === 0 && noPositiveRoots(p)
+		: lo > -1e-9 && hi < SEGMENT && noRootsOnSegment(p, SEGMENT);
+}
+
+const needsRoots = (p: Poly, lo: number, hi: number): boolean =>
+	p.length >= 2 && maxAbs(p) !== 0 && !certifiedEmpty(p, lo, hi);
+
+/**
+ * The roots a real-root search in [lo, hi] must look at; null when there are none. When the
+ * coefficients certify a single root in the searched sector or lens, that real root alone, found
+ * by bracketing: no eigenvalues needed either.
+ */
+function searchedRoots(p: Poly, lo: number, hi: number): Roots | null {
+	if (!needsRoots(p, lo, hi)) return null;
+	const x =
+		lo >= 0 && (hi === Infinity || hi < SEGMENT)
+			? loneRoot(p, hi === Infinity ? hi : SEGMENT)
+			: null;
+	return x === null ? polyRoots(p) : { re: Float64Array.of(x), im: Float64Array.of(0) };
+}
+
 /**
  * Real parts of the roots in [lo, hi] that are real or nearly so. Two close real roots (a nearly
  * tangent crossing) can come out of rounding as a pair x ± iy: x − y and x + y are tried as well,
  * and only L itself decides which candidates are crossings.
  */
-function realRootsIn(p: Poly, lo: number, hi: number): number[] {
-	if (p.length < 2 || maxAbs(p) === 0) return [];
-	// no root near the real axis there (Descartes–Obreshkoff): no eigenvalues needed
-	if (
-		hi === Infinity
-			? lo === 0 && noPositiveRoots(p)
-			: lo > -1e-9 && hi < SEGMENT && noRootsOnSegment(p, SEGMENT)
-	)
-		return [];
-	const r = polyRoots(p);
+function nearRealIn(r: Roots | null, lo: number, hi: number): number[] {
 	const out: number[] = [];
+	if (!r) return out;
 	for (let i = 0; i < r.re.length; i++) {
 		const x = r.re[i];
 		const y = r.im[i];
@@ -57,13 +74,8 @@ function realRootsIn(p: Poly, lo: number, hi: number): number[] {
 	return out;
 }
 
-/** Fujiwara's bound on the root magnitudes of p (ascending). */
-export function rootBound(p: Poly): number {
-	const n = p.length - 1;
-	let bound = 0;
-	for (let k = 1; k <= n; k++) bound = Math.max(bound, Math.abs(p[n - k] / p[n]) ** (1 / k));
-	return 2 * bound;
-}
+const realRootsIn = (p: Poly, lo: number, hi: number): number[] =>
+	nearRealIn(searchedRoots(p, lo, hi), lo, hi);
 
 /** True when p is zero up to rounding relative to the terms it was formed from. */
 const vanishes = (p: Poly, scale: number) => maxAbs(p) <= 1e-13 * scale;
@@ -71,6 +83,9 @@ const vanishes = (p: Poly, scale: number) => maxAbs(p) <= 1e-13 * scale;
 type Residual = (ev: LoopEval) => number;
 const gainResidual: Residual = (ev) => 0.5 * Math.log(ev.re * ev.re + ev.im * ev.im);
 const phaseResidual: Residual = (ev) => Math.atan2(-ev.im, -ev.re);
+
+/** Relative distance beyond which a polished crossing no longer stands for its algebraic estimate. */
+const WANDER_LIMIT = 1e-4;
 
 /**
  * Newton on the residual in ln f (continuous, and low sampled frequencies) or in θ (the upper
@@ -92,6 +107,8 @@ function polish(ev: LoopEval, f0: number, residual: Residual, phase: boolean): [
 		let improved = false;
 		for (let back = 0; back < 4; back++) {
 			const g = logVar ? f * Math.exp(step) : Math.min(top, Math.max(1e-300, f + step));
+			// a step below the spacing of doubles leaves f where it is: no shorter one can move it
+			if (g === f) break;
 			ev.withSlope(g);
 			const rg = residual(ev);
 			if (Math.abs(rg) < Math.abs(r)) {
@@ -102,7 +119,10 @@ function polish(ev: LoopEval, f0: number, residual: Residual, phase: boolean): [
 			}
 			step *= 0.5;
 		}
-		if (!improved) break;
+		// confirm() discards a polish that ends beyond WANDER_LIMIT of its start; one that has
+		// gone a hundred times as far (typically a root where L is real and positive, walking
+		// towards −180°) is not followed further
+		if (!improved || Math.abs(f - f0) > 100 * WANDER_LIMIT * f0) break;
 	}
 	ev.at(f);
 	return [f, Math.abs(residual(ev))];
@@ -125,13 +145,13 @@ function confirm(
 	for (const c of candidates) {
 		if (!(c > 0) || !Number.isFinite(c)) continue;
 		let [f, r] = polish(ev, c, residual, phase);
-		if (Math.abs(f - c) > 1e-4 * c) {
+		if (Math.abs(f - c) > WANDER_LIMIT * c) {
 			// Newton wandered (towards another root): judge the algebraic estimate on its own
 			ev.at(c);
 			[f, r] = [c, Math.abs(residual(ev))];
 		}
 		if (r > ACCEPT) continue;
-		ev.at(f);
+		// ev is at f (polish leaves it there)
 		if (phase && !(ev.re < 0 && ev.denRelative > ON_POLE && ev.numRelative > ON_POLE)) continue;
 		out.push({ f, re: ev.re, im: ev.im });
 	}
@@ -200,26 +220,49 @@ const sumAbs = (p: Poly) => p.reduce((s, x) => s + Math.abs(x), 0);
 /**
  * Candidate θ of the gain (|L| = 1) and phase (L real) crossings of g·N/D on the unit circle:
  * the lower half of the circle from the polynomials in u = |z − 1|², the upper half from those
- * in |z + 1|², each built on coefficients shifted exactly to its end.
+ * in |z + 1|², each built on coefficients shifted exactly to its end. When both halves need
+ * roots, the lower half's eigenvalues serve the upper half too (reflect.ts).
  */
 function circleCandidates(numW: Poly, denW: Poly, g: number): { gain: number[]; phase: number[] } {
-	const gain: number[] = [];
-	const phase: number[] = [];
-	for (const c of [1, -1] as const) {
-		// from w = z − 1 to v = z + 1 = w + 2, exactly
-		const n = c === 1 ? numW : shiftTo(numW, -2);
-		const d = c === 1 ? denW : shiftTo(denW, -2);
-		const scale = (g * sumAbs(n)) ** 2 + sumAbs(d) ** 2;
-		const G = gainPolyU(n, d, g, c);
-		const Q = phasePolyU(n, d, c);
-		// the two halves meet at u = 2; the end points themselves are judged separately
-		if (!vanishes(G, scale))
-			for (const u of realRootsIn(G, c === 1 ? 1e-300 : -1e-12, 2 + 1e-6))
-				gain.push(thetaFromU(u, c));
-		if (!vanishes(Q, scale))
-			for (const u of realRootsIn(Q, 1e-300, 2 + 1e-6)) phase.push(thetaFromU(u, c));
-	}
+	const nV = shiftTo(numW, -2);
+	const dV = shiftTo(denW, -2);
+	const scaleOf = (n: Poly, d: Poly) => (g * sumAbs(n)) ** 2 + sumAbs(d) ** 2;
+	const [scaleW, scaleV] = [scaleOf(numW, denW), scaleOf(nV, dV)];
+	// the two halves meet at u = 2; the end points themselves are judged separately
+	const gain = bothHalves(
+		gainPolyU(numW, denW, g, 1),
+		gainPolyU(nV, dV, g, -1),
+		[scaleW, scaleV],
+		[1e-300, -1e-12]
+	);
+	const phase = bothHalves(
+		phasePolyU(numW, denW, 1),
+		phasePolyU(nV, dV, -1),
+		[scaleW, scaleV],
+		[1e-300, 1e-300]
+	);
 	return { gain, phase };
+}
+
+/** θ of the near-real roots of P₊ (lower half) and P₋ (upper half) in [lo, 2 + 1e-6]. */
+function bothHalves(
+	plus: Poly,
+	minus: Poly,
+	[scaleW, scaleV]: [number, number],
+	[loW, loV]: [number, number]
+): number[] {
+	const HI = 2 + 1e-6;
+	const rootsW = vanishes(plus, scaleW) ? null : searchedRoots(plus, loW, HI);
+	// reflection needs all of P₊'s roots (not a lone one found by bracketing)
+	const all = rootsW && rootsW.re.length === plus.length - 1 ? rootsW : null;
+	const rootsV =
+		vanishes(minus, scaleV) || !needsRoots(minus, loV, HI)
+			? null
+			: ((all && reflectedRoots(minus, all, plus.length - 1)) ?? searchedRoots(minus, loV, HI));
+	return [
+		...nearRealIn(rootsW, loW, HI).map((u) => thetaFromU(u, 1)),
+		...nearRealIn(rootsV, loV, HI).map((u) => thetaFromU(u, -1))
+	];
 }
 
 /** The same from Chebyshev series in x = cos θ: well conditioned at any order. */

@@ -109,6 +109,14 @@ export function rootCentre(p: Poly): number | null {
 	return Math.pow(Math.abs(q[lo] / q[hi]), 1 / (hi - lo));
 }
 
+/** Fujiwara's bound on the root magnitudes of p (ascending). */
+export function rootBound(p: Poly): number {
+	const n = p.length - 1;
+	let bound = 0;
+	for (let k = 1; k <= n; k++) bound = Math.max(bound, Math.abs(p[n - k] / p[n]) ** (1 / k));
+	return 2 * bound;
+}
+
 /** Largest |coefficient|, for scale-aware tolerances. */
 export function maxAbs(p: Poly): number {
 	let m = 0;

@@ -48,8 +48,8 @@ export class ContinuousEval implements LoopEval {
 		const d = scaleArgument(den, this.w0);
 		const sn = powerOfTwo(maxAbs(n));
 		const sd = powerOfTwo(maxAbs(d));
-		this.num = Float64Array.from(trim(n), (x) => x / sn);
-		this.den = Float64Array.from(trim(d), (x) => x / sd);
+		this.num = divided(trim(n), sn);
+		this.den = divided(trim(d), sd);
 		this.gain = (gain * sn) / sd;
 	}
 
@@ -119,6 +119,13 @@ export class ContinuousEval implements LoopEval {
 		if (this.num.length < this.den.length) return 0;
 		return (this.gain * this.num[this.num.length - 1]) / this.den[this.den.length - 1];
 	}
+}
+
+/** p / s as a typed array (Float64Array.from with a map function is several times slower). */
+function divided(p: Poly, s: number): Float64Array {
+	const out = new Float64Array(p.length);
+	for (let i = 0; i < p.length; i++) out[i] = p[i] / s;
+	return out;
 }
 
 /** p(x) and p'(x) at complex x = xr + i·xi by Horner, coefficients in ascending powers. */

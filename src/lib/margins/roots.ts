@@ -33,9 +33,8 @@ export function polyRoots(p: Poly): Roots {
 	if (n === 1) re[0] = -q[0] / q[1];
 	else if (n === 2) quadratic(q, re, im);
 	else if (n > 2) {
-		const found = companionRoots(q);
-		re.set(found.re);
-		im.set(found.im);
+		// the first n entries take the roots of q; the ones at the origin stay 0
+		companionRoots(q, re, im);
 		polish(q, re, im, n);
 	}
 	return { re, im };
@@ -119,16 +118,16 @@ function quadratic(q: Poly, re: Float64Array, im: Float64Array): void {
  * The companion matrix of q (1-based, for hqr), balanced. A companion matrix has only its first
  * row and its subdiagonal off the diagonal, and a diagonal similarity keeps that shape, so the
  * balancing runs on those 2n − 1 entries: the same sums in the same order, the same powers of
- * two as `balance` on the full matrix (bit for bit), at O(n) per sweep instead of O(n²).
+ * two as `balance` on the full matrix (bit for bit), at O(n) per sweep instead of O(n²). The
+ * entries are balanced in place in the matrix itself (row 1 and the subdiagonal).
  */
 function companion(q: Poly, n: number): Float64Array {
 	const w = n + 1;
-	// top[k] = a[1][k], sub[k] = a[k + 1][k]
-	const top = new Float64Array(w);
-	const sub = new Float64Array(w);
+	const a = new Float64Array(w * w);
+	// a[1][k] at w + k, a[k + 1][k] at (k + 1)·w + k
 	for (let k = 1; k <= n; k++) {
-		top[k] = -q[n - k] / q[n];
-		if (k < n) sub[k] = 1;
+		a[w + k] = -q[n - k] / q[n];
+		if (k < n) a[(k + 1) * w + k] = 1;
 	}
 	for (let sweep = 0; sweep < 200; sweep++) {
 		let done = true;
@@ -136,53 +135,73 @@ function companion(q: Poly, n: number): Float64Array {
 			let c: number;
 			let r = 0;
 			if (i === 1) {
-				c = n > 1 ? Math.abs(sub[1]) : 0;
-				for (let j = 2; j <= n; j++) r += Math.abs(top[j]);
+				c = n > 1 ? Math.abs(a[2 * w + 1]) : 0;
+				for (let j = 2; j <= n; j++) r += Math.abs(a[w + j]);
 			} else {
-				c = Math.abs(top[i]) + (i < n ? Math.abs(sub[i]) : 0);
-				r = Math.abs(sub[i - 1]);
+				c = Math.abs(a[w + i]) + (i < n ? Math.abs(a[(i + 1) * w + i]) : 0);
+				r = Math.abs(a[i * w + i - 1]);
 			}
 			if (c === 0 || r === 0) continue;
-			let g = r / 2;
-			let f = 1;
 			const s = c + r;
-			while (c < g && f < 1e150) {
-				f *= 2;
-				c *= 4;
-			}
-			g = r * 2;
-			while (c > g && f > 1e-150) {
-				f /= 2;
-				c /= 4;
-			}
-			if ((c + r) / f < 0.95 * s) {
+			const f = scaleFactor(c, r);
+			if ((c * f * f + r) / f < 0.95 * s) {
 				done = false;
 				const gi = 1 / f;
 				// row i by 1/f, column i by f (the diagonal entry keeps its value)
-				if (i === 1) for (let j = 2; j <= n; j++) top[j] *= gi;
+				if (i === 1) for (let j = 2; j <= n; j++) a[w + j] *= gi;
 				else {
-					sub[i - 1] *= gi;
-					top[i] *= f;
+					a[i * w + i - 1] *= gi;
+					a[w + i] *= f;
 				}
-				if (i < n) sub[i] *= f;
+				if (i < n) a[(i + 1) * w + i] *= f;
 			}
 		}
 		if (done) break;
 	}
-	const a = new Float64Array(w * w);
-	for (let k = 1; k <= n; k++) {
-		a[1 * w + k] = top[k];
-		if (k < n) a[(k + 1) * w + k] = sub[k];
-	}
 	return a;
 }
 
-function companionRoots(q: Poly): Roots {
+/**
+ * The power of two f that balancing picks for column sum c and row sum r: doubled while
+ * c·f² < r/2, halved while c·f² > 2r (EISPACK's loops, by a factor 4 on c per step). The step
+ * count is estimated from the exponents and then checked by the loops themselves, which keeps
+ * the result exactly theirs (products by powers of two are exact) at a few steps instead of up
+ * to 500 for coefficients that span many decades.
+ */
+function scaleFactor(c: number, r: number): number {
+	let f = 1;
+	const g = r / 2;
+	if (c < g) {
+		const k = Math.floor(Math.log2(g / c) / 2) - 1;
+		if (k > 1 && k < 490) {
+			f = 2 ** k;
+			c *= f * f;
+		}
+		while (c < g && f < 1e150) {
+			f *= 2;
+			c *= 4;
+		}
+	}
+	const h = r * 2;
+	if (c > h) {
+		const k = Math.floor(Math.log2(c / h) / 2) - 1;
+		if (k > 1 && k < 490 && f / 2 ** k > 1e-150) {
+			const d = 2 ** k;
+			f /= d;
+			c /= d * d;
+		}
+		while (c > h && f > 1e-150) {
+			f /= 2;
+			c /= 4;
+		}
+	}
+	return f;
+}
+
+/** The roots of q (degree n > 2) into re/im[0..n). */
+function companionRoots(q: Poly, re: Float64Array, im: Float64Array): void {
 	const n = q.length - 1;
-	const a = companion(q, n);
-	const re = new Float64Array(n);
-	const im = new Float64Array(n);
-	if (hqr(a, n, re, im) && allFinite(re) && allFinite(im)) return { re, im };
+	if (hqr(companion(q, n), n, re, im) && allFinite(re) && allFinite(im)) return;
 	try {
 		// hqr overwrote the matrix: rebuild it for the second opinion
 		const fresh = companion(q, n);
@@ -196,11 +215,13 @@ function companionRoots(q: Poly): Roots {
 			re[i] = x[i];
 			im[i] = y[i] ?? 0;
 		}
-		if (allFinite(re) && allFinite(im)) return { re, im };
+		if (allFinite(re) && allFinite(im)) return;
 	} catch {
 		// numeric.eig reports "internal error" on some companion matrices; Aberth does not care
 	}
-	return pairConjugates(aberth(q));
+	const r = pairConjugates(aberth(q));
+	re.set(r.re);
+	im.set(r.im);
 }
 
 function allFinite(x: Float64Array): boolean {
@@ -262,7 +283,7 @@ function polish(q: Poly, re: Float64Array, im: Float64Array, n: number): void {
 	// QR returns exact conjugate pairs; only Newton can have broken one
 	if (moved) pairConjugates({ re, im });
 	if (bad > 0) {
-		const better = pairConjugates(aberth(q, { re: re.slice(), im: im.slice() }));
+		const better = pairConjugates(aberth(q, { re: re.slice(0, n), im: im.slice(0, n) }));
 		let worse = 0;
 		let improved = 0;
 		for (let k = 0; k < n; k++) {

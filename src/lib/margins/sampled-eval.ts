@@ -73,12 +73,14 @@ export class SampledEval {
 				const fi = ei + this.pi[i];
 				const d = fr * fr + fi * fi;
 				nearest = Math.min(nearest, d);
-				const t = (lr * fr + li * fi) / d;
-				li = (li * fr - lr * fi) / d;
+				// one division per pole, not two (four with the slope): divisions are the loop's cost
+				const inv = 1 / d;
+				const t = (lr * fr + li * fi) * inv;
+				li = (li * fr - lr * fi) * inv;
 				lr = t;
 				if (slope) {
-					sr -= fr / d;
-					si += fi / d;
+					sr -= fr * inv;
+					si += fi * inv;
 				}
 			}
 		}

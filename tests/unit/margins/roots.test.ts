@@ -51,6 +51,16 @@ describe('polynomial roots', () => {
 		expect(q.im[0]).toBe(-q.im[1]);
 	});
 
+	it('a root at the origin beside roots only Aberth can improve: no crash, the large root right', () => {
+		// x·(4e-15 + 4e-12 x + 4e8 x² − 5e-9 x³): coefficients over 23 decades; the polish once
+		// handed Aberth start arrays one entry too long (the root at the origin) and threw
+		const p = [0, 4e-15, 4e-12, 4e8, -5e-9];
+		const r = polyRoots(p);
+		expect(r.re.length).toBe(4);
+		expect(Math.max(...r.re)).toBeCloseTo(8e16, -3);
+		expect(Array.from(r.re).filter((x) => x === 0).length).toBeGreaterThanOrEqual(1);
+	});
+
 	it('a triple root comes back as a tight cluster (backward stable), conjugates exact', () => {
 		const r = polyRoots(fromRoots([-1, -1, -1, -2], [0, 0, 0, 0]));
 		const cluster = sortedRe(r).slice(1);
