@@ -76,7 +76,7 @@ const KNOWN: Record<string, Reason> = {
 	'20232:pm': 'octave-miss',
 	'20233:pm': 'octave-miss',
 	'20238:pm': 'octave-miss',
-	'20239:pm': 'octave-miss',
+	'20239:pm': 'octave-miss'
 };
 
 /**
@@ -120,7 +120,9 @@ describe('Octave control package margin(), per crossover', () => {
 				const either = EITHER[d.key];
 				if (either) {
 					if (!d.reason || !either.includes(d.reason))
-						failures.push(`listed as ${either.join(' or ')} but direct evaluation says ${d.reason ?? 'the ENGINE is wrong'}: ${shown}`);
+						failures.push(
+							`listed as ${either.join(' or ')} but direct evaluation says ${d.reason ?? 'the ENGINE is wrong'}: ${shown}`
+						);
 				} else if (!known)
 					failures.push(
 						`unlisted disagreement ${shown}; direct evaluation says ${d.reason ?? 'the ENGINE is wrong'}`

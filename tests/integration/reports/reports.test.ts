@@ -132,7 +132,8 @@ beforeAll(async () => {
 	const starting = startTestWorker({ DATABASE_URL: r.db.url, ORIGIN: 'http://127.0.0.1:1' });
 	await addLoop('veld-s2', 'ax1-speed', '<b>Axis 1</b> speed & "friends"', 24);
 	await addLoop('veld-s2', 'ax2-speed', '=HYPERLINK("http://evil.test")', 8);
-	await addLoop('veld-s2', 'ax3-speed', 'Axis 3 speed', 100);
+	// Letters beyond Latin-1: the PDF draws them from the font's other subsets.
+	await addLoop('veld-s2', 'ax3-speed', 'Axis 3 speed Łódź Ωmega Привод', 100);
 	await addLoop('veld-s2', 'ax4-speed', 'Axis 4 speed, not identified yet', null);
 	await addLoop('veld-broken', 'rig-speed', 'Rig speed', 24);
 	worker = await starting;
@@ -250,6 +251,13 @@ describe('PDF report', () => {
 		expect(out).toMatch(/only as good as the model/);
 		// Markup in a loop name is printed as text.
 		expect(out).toContain('<b>Axis 1</b> speed & "friends"');
+		// Non-Latin-1 letters come out as themselves, drawn from embedded Plex subsets beyond the
+		// three latin faces (latin-ext for Ł ó ź, greek for Ω, cyrillic for Привод), not as boxes.
+		expect(out).toContain('Axis 3 speed Łódź Ωmega Привод');
+		const fonts = spawnSync('pdffonts', [path], { encoding: 'utf8' });
+		expect(fonts.status, fonts.stderr).toBe(0);
+		const embedded = fonts.stdout.split('\n').filter((line) => /IBMPlex/i.test(line));
+		expect(embedded.length).toBeGreaterThanOrEqual(6);
 		// Cover, one table page, one plot page each for the non-compliant and the unstable loop.
 		const pages = Number(
 			/Pages:\s+(\d+)/.exec(spawnSync('pdfinfo', [path], { encoding: 'utf8' }).stdout)?.[1]

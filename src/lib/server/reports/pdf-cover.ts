@@ -20,7 +20,7 @@ import {
 	when,
 	type Doc
 } from './pdf-layout';
-import { put } from './pdf-text';
+import { flow, put } from './pdf-text';
 import { verdictLabel } from './pdf-verdict';
 
 export const CAUTION =
@@ -41,11 +41,8 @@ export function cover(doc: Doc, r: ReportData) {
 	doc.moveDown(0.6);
 	doc.font('bold').fontSize(24).fillColor(INK).text('Compliance report');
 	doc.moveDown(0.2);
-	doc
-		.font('sans')
-		.fontSize(13)
-		.fillColor(SOFT)
-		.text(T(scopeInWords(r.filters)), { width: CONTENT_W });
+	doc.font('sans').fontSize(13).fillColor(SOFT);
+	flow(doc, T(scopeInWords(r.filters)), doc.x, doc.y, CONTENT_W);
 	doc.moveDown(1);
 	keyValue(doc, [
 		['Generated', when(r.generatedAt)],
@@ -73,18 +70,16 @@ export function cover(doc: Doc, r: ReportData) {
 		doc.font('sans').fontSize(9).fillColor(SOFT).text('No loop class in scope has targets yet.');
 	for (const q of r.requirements) {
 		const y = doc.y;
-		doc
-			.font('bold')
-			.fontSize(9)
-			.fillColor(INK)
-			.text(T(`${q.className} (${q.classKey}) · version ${q.version}`), MARGIN.left, y, {
-				width: CONTENT_W
-			});
-		doc
-			.font('sans')
-			.fontSize(8.5)
-			.fillColor(SOFT)
-			.text(T(targetsInWords(q.targets)), { width: CONTENT_W });
+		doc.font('bold').fontSize(9).fillColor(INK);
+		flow(
+			doc,
+			T(`${q.className} (${q.classKey}) · version ${q.version}`),
+			MARGIN.left,
+			y,
+			CONTENT_W
+		);
+		doc.font('sans').fontSize(8.5).fillColor(SOFT);
+		flow(doc, T(targetsInWords(q.targets)), doc.x, doc.y, CONTENT_W);
 		doc.moveDown(0.35);
 	}
 	const stale = r.loops.filter(

@@ -3,6 +3,7 @@
  * the PDF uses (headings, key–value rows, times). Text goes through T (pdfSafe) first.
  */
 import { pdfSafe } from '../../reports/words';
+import { flow } from './pdf-text';
 
 export type Doc = PDFKit.PDFDocument;
 
@@ -21,11 +22,8 @@ export const BOTTOM = PAGE_H - MARGIN.bottom;
 export const T = (s: string) => pdfSafe(s);
 
 export function heading(doc: Doc, text: string, size = 14) {
-	doc
-		.font('bold')
-		.fontSize(size)
-		.fillColor(INK)
-		.text(T(text), MARGIN.left, doc.y, { width: CONTENT_W });
+	doc.font('bold').fontSize(size).fillColor(INK);
+	flow(doc, T(text), MARGIN.left, doc.y, CONTENT_W);
 	doc.moveDown(0.3);
 }
 
@@ -36,8 +34,8 @@ export function keyValue(doc: Doc, rows: [string, string, ('mono' | 'sans')?][],
 		doc
 			.font(font ?? 'sans')
 			.fontSize(9)
-			.fillColor(INK)
-			.text(T(v), MARGIN.left + labelW, y, { width: CONTENT_W - labelW });
+			.fillColor(INK);
+		flow(doc, T(v), MARGIN.left + labelW, y, CONTENT_W - labelW);
 		doc.moveDown(0.25);
 	}
 }

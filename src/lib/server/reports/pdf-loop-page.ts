@@ -22,7 +22,7 @@ import {
 	type Doc
 } from './pdf-layout';
 import { CASE_DASH, CASE_INK, drawBode, drawNyquist } from './pdf-plots';
-import { put } from './pdf-text';
+import { flow, put } from './pdf-text';
 import { VERDICT_INK, verdictLabel } from './pdf-verdict';
 
 export interface LoopPlot {
@@ -112,11 +112,8 @@ function legend(doc: Doc, cases: CaseResponse[], x: number, y: number) {
 
 export function loopPage(doc: Doc, l: ReportLoop, plot: LoopPlot | undefined) {
 	doc.addPage();
-	doc
-		.font('sans')
-		.fontSize(8)
-		.fillColor(SOFT)
-		.text(T(`${l.product.name} (${l.product.key})`), MARGIN.left, MARGIN.top);
+	doc.font('sans').fontSize(8).fillColor(SOFT);
+	flow(doc, T(`${l.product.name} (${l.product.key})`), MARGIN.left, MARGIN.top, CONTENT_W);
 	heading(doc, `${l.product.key} / ${l.key} — ${l.name}`, 15);
 	verdictLabel(doc, l.verdict, MARGIN.left, doc.y, 10);
 	doc.y += 16;
@@ -177,11 +174,8 @@ export function loopPage(doc: Doc, l: ReportLoop, plot: LoopPlot | undefined) {
 			.fontSize(7)
 			.fillColor(INK)
 			.text('Shaded: ruled out by the targets', lx, y + 70, { width: CONTENT_W - nyq - 16 });
-		doc
-			.font('sans')
-			.fontSize(7)
-			.fillColor(SOFT)
-			.text(T(forbidden.join('\n')), lx, doc.y + 2, { width: CONTENT_W - nyq - 16 });
+		doc.font('sans').fontSize(7).fillColor(SOFT);
+		flow(doc, T(forbidden.join('\n')), lx, doc.y + 2, CONTENT_W - nyq - 16);
 	}
 	doc.y = y + nyq + 4;
 	doc.x = MARGIN.left;

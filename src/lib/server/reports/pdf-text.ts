@@ -4,6 +4,8 @@
  * most of a report's text. Alignment and truncation are measured here with widthOfString (whose
  * layout pdfkit caches). Text that may need several lines still goes through doc.text.
  */
+import { widthOf, withRuns } from './pdf-fonts';
+
 type Doc = PDFKit.PDFDocument;
 
 export interface PutOptions {
@@ -13,12 +15,12 @@ export interface PutOptions {
 }
 
 export function fitText(doc: Doc, text: string, width: number): string {
-	if (doc.widthOfString(text) <= width) return text;
+	if (widthOf(doc, text) <= width) return text;
 	let lo = 0;
 	let hi = text.length;
 	while (lo < hi) {
 		const mid = Math.ceil((lo + hi) / 2);
-		if (doc.widthOfString(`${text.slice(0, mid)}…`) <= width) lo = mid;
+		if (widthOf(doc, `${text.slice(0, mid)}…`) <= width) lo = mid;
 		else hi = mid - 1;
 	}
 	return `${text.slice(0, lo)}…`;
@@ -33,31 +35,45 @@ export function put(
 	options: PutOptions = {}
 ): number {
 	const line = options.width === undefined ? text : fitText(doc, text, options.width);
-	const w = doc.widthOfString(line);
+	const w = widthOf(doc, line);
 	const dx =
 		options.width === undefined || !options.align || options.align === 'left'
 			? 0
 			: options.align === 'right'
 				? options.width - w
 				: (options.width - w) / 2;
-	doc.text(line, x + dx, y, { lineBreak: false });
+	let at = x + dx;
+	// Run by run: characters the face's latin subset lacks come from its other subsets.
+	withRuns(doc, line, (r) => {
+		doc.text(r.text, at, y, { lineBreak: false });
+		at += doc.widthOfString(r.text);
+	});
 	return w;
 }
 
 /** Height of `text` in a column `width` wide: one line when it fits, else as pdfkit wraps it. */
 export function blockHeight(doc: Doc, text: string, width: number): number {
 	if (!text) return 0;
-	return !text.includes('\n') && doc.widthOfString(text) <= width
+	return !text.includes('\n') && widthOf(doc, text) <= width
 		? doc.currentLineHeight(true)
 		: doc.heightOfString(text, { width });
 }
 
 /** Text in a column: one `put` when it fits on a line, else wrapped by pdfkit. Leaves doc.y below it. */
 export function block(doc: Doc, text: string, x: number, y: number, width: number): void {
-	if (!text.includes('\n') && doc.widthOfString(text) <= width) {
+	if (!text.includes('\n') && widthOf(doc, text) <= width) {
 		put(doc, text, x, y);
 		doc.y = y + doc.currentLineHeight(true);
 	} else {
-		doc.text(text, x, y, { width });
+		flow(doc, text, x, y, width);
 	}
+}
+
+/** Text wrapped by pdfkit in a column, run by run (see pdf-fonts.ts); leaves doc.y below it. */
+export function flow(doc: Doc, text: string, x: number, y: number, width: number): void {
+	withRuns(doc, text, (r, i, all) => {
+		const options = { width, continued: i < all.length - 1 };
+		if (i === 0) doc.text(r.text, x, y, options);
+		else doc.text(r.text, options);
+	});
 }

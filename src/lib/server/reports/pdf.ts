@@ -8,7 +8,6 @@
  * Every page carries "page N of M" and a footer with the caution in short. Verdicts are a word
  * and a shape, never a colour alone.
  */
-import { createRequire } from 'node:module';
 import PDFDocument from 'pdfkit';
 import { scopeInWords } from '../../reports/filters';
 import type { ReportData } from '../../reports/types';
@@ -18,17 +17,10 @@ import { CONTENT_W, FAINT, LINE, MARGIN, PAGE_H, PAGE_W, when, type Doc } from '
 import { loopPage, needsPlotPage, type LoopPlot } from './pdf-loop-page';
 import { loopTable } from './pdf-table';
 import { put } from './pdf-text';
-import { sfntFont } from './woff';
+import { registerFonts } from './pdf-fonts';
 
 export { CAUTION, verdictCounts } from './pdf-cover';
 export { needsPlotPage, type LoopPlot } from './pdf-loop-page';
-
-const require = createRequire(import.meta.url);
-const FONTS = {
-	sans: require.resolve('@fontsource/ibm-plex-sans/files/ibm-plex-sans-latin-400-normal.woff'),
-	bold: require.resolve('@fontsource/ibm-plex-sans/files/ibm-plex-sans-latin-600-normal.woff'),
-	mono: require.resolve('@fontsource/ibm-plex-mono/files/ibm-plex-mono-latin-400-normal.woff')
-};
 
 const CAUTION_SHORT =
 	'Results are only as good as the model; local codes, standards and licensed engineering judgement decide.';
@@ -80,9 +72,7 @@ export async function renderPdf({ report, plots }: PdfInput): Promise<Uint8Array
 			Creator: 'Headroom'
 		}
 	});
-	doc.registerFont('sans', sfntFont(FONTS.sans));
-	doc.registerFont('bold', sfntFont(FONTS.bold));
-	doc.registerFont('mono', sfntFont(FONTS.mono));
+	registerFonts(doc);
 	// Not as the constructor's default font: pdfkit would then cache the face under its own name
 	// only, and open (parse) the font file again on every doc.font('sans').
 	doc.font('sans');
