@@ -15,7 +15,7 @@ import { createHash } from 'node:crypto';
 import type { EntityManager } from '@mikro-orm/postgresql';
 
 interface PgClient {
-	query(config: { name: string; text: string; values: unknown[] }): Promise<{ rows: unknown[] }>;
+	query(config: { name?: string; text: string; values: unknown[] }): Promise<{ rows: unknown[] }>;
 }
 interface KnexClient {
 	acquireConnection(): Promise<PgClient>;
@@ -35,9 +35,7 @@ export function numberPlaceholders(sql: string): string {
 	return sql.replace(/\?/g, () => `$${++n}`);
 }
 
-function statementFor(
-	sql: string
-): { name: string; text: string } | { name: undefined; text: string } {
+function statementFor(sql: string): { name?: string; text: string } {
 	const known = names.get(sql);
 	if (known) return known;
 	const text = numberPlaceholders(sql);
@@ -60,9 +58,8 @@ export async function preparedRows<T>(
 	const connection = await client.acquireConnection();
 	try {
 		const values = params.map((v) => (v instanceof Date ? v.toISOString() : v));
-		const result = statement.name
-			? await connection.query({ name: statement.name, text: statement.text, values })
-			: await connection.query({ text: statement.text, values } as never);
+		// Without a name pg sends an unnamed statement, parsed and planned for this call only.
+		const result = await connection.query({ ...statement, values });
 		return result.rows as T[];
 	} finally {
 		await client.releaseConnection(connection);

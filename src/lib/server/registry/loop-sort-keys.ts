@@ -35,34 +35,30 @@ const rankCase = (alias: string) =>
 		.join(' ')} end`;
 
 /**
- * Sort expressions with the alias they need besides `l` (loop). Margins are worst case over
+ * Sort expressions. A sort on a loop column takes the loop's alias (`l.` in queries, none in
+ * index definitions); one on another table names the join it needs. Margins are worst case over
  * operating cases; a phase margin sorts by its size; verdicts best to worst (compliant …
  * unstable), so `desc` puts what needs attention first.
  */
-export const SORT_KEYS: Record<
-	LoopSort,
-	{ sql: string; join?: 'p' | 'c' | 'u'; column?: (alias: string) => string }
-> = {
-	key: { sql: 'l.key', column: (a) => `${a}key` },
-	name: { sql: 'l.name', column: (a) => `${a}name` },
-	product: { sql: 'p.key', join: 'p' },
-	class: { sql: 'c.key', join: 'c' },
-	owner: { sql: 'u.name', join: 'u' },
-	verdict: { sql: rankCase('l.'), column: (a) => `(${rankCase(a)})` },
-	updatedAt: { sql: 'l.updated_at', column: (a) => `${a}updated_at` },
-	phaseMargin: { sql: 'abs(l.wc_phase_margin_deg)', column: (a) => `abs(${a}wc_phase_margin_deg)` },
-	upperGainMargin: {
-		sql: 'l.wc_upper_gain_margin_db',
-		column: (a) => `${a}wc_upper_gain_margin_db`
-	},
-	delayMargin: { sql: 'l.wc_delay_margin_s', column: (a) => `${a}wc_delay_margin_s` },
-	modulusMargin: { sql: 'l.wc_modulus_margin', column: (a) => `${a}wc_modulus_margin` },
-	shortfall: { sql: 'l.worst_shortfall', column: (a) => `${a}worst_shortfall` }
-};
+export const SORT_KEYS: Record<LoopSort, { of: (loop: string) => string; join?: 'p' | 'c' | 'u' }> =
+	{
+		key: { of: (l) => `${l}key` },
+		name: { of: (l) => `${l}name` },
+		product: { of: () => 'p.key', join: 'p' },
+		class: { of: () => 'c.key', join: 'c' },
+		owner: { of: () => 'u.name', join: 'u' },
+		verdict: { of: (l) => `(${rankCase(l)})` },
+		updatedAt: { of: (l) => `${l}updated_at` },
+		phaseMargin: { of: (l) => `abs(${l}wc_phase_margin_deg)` },
+		upperGainMargin: { of: (l) => `${l}wc_upper_gain_margin_db` },
+		delayMargin: { of: (l) => `${l}wc_delay_margin_s` },
+		modulusMargin: { of: (l) => `${l}wc_modulus_margin` },
+		shortfall: { of: (l) => `${l}worst_shortfall` }
+	};
 
 /** The page order for a sort and direction (tie-breakers: loop key, then id). */
 export const orderSql = (sort: LoopSort, dir: 'asc' | 'desc') =>
-	`order by ${SORT_KEYS[sort].sql} ${dir} nulls last, l.key asc, l.id asc`;
+	`order by ${SORT_KEYS[sort].of('l.')} ${dir} nulls last, l.key asc, l.id asc`;
 
 const snake = (s: string) => s.replace(/[A-Z]/g, (c) => `_${c.toLowerCase()}`);
 
@@ -70,13 +66,13 @@ const snake = (s: string) => s.replace(/[A-Z]/g, (c) => `_${c.toLowerCase()}`);
 export const SORT_INDEXES: { name: string; sql: string }[] = (
 	Object.entries(SORT_KEYS) as [LoopSort, (typeof SORT_KEYS)[LoopSort]][]
 )
-	.filter(([, k]) => k.column)
+	.filter(([, k]) => !k.join)
 	.flatMap(([sort, k]) =>
 		(['asc', 'desc'] as const).map((dir) => {
 			const name = `loop_sort_${snake(sort)}_${dir}`;
 			return {
 				name,
-				sql: `create index "${name}" on "loop" (${k.column!('')} ${dir} nulls last, "key", "id") where "archived_at" is null`
+				sql: `create index "${name}" on "loop" (${k.of('')} ${dir} nulls last, "key", "id") where "archived_at" is null`
 			};
 		})
 	);

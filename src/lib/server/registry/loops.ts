@@ -164,10 +164,11 @@ export function listQuery(
 ): { sql: string; params: unknown[] } {
 	const where = whereOf(f);
 	const order = orderOf(f);
-	// The page is chosen on narrow rows (ids and sort keys) with a plain ORDER BY … LIMIT, which
-	// PostgreSQL answers with a bounded top-N sort; the wide columns (the cached judgement, the
-	// active deviations) are fetched for those rows only, re-sorted by the same expressions. The
-	// total is an uncorrelated subquery, evaluated once: a window count would force a full sort.
+	// The page is chosen on narrow rows (ids) with a plain ORDER BY … LIMIT, which PostgreSQL
+	// answers by walking the sort's index (loop-sort-keys.ts) or with a bounded top-N sort; the
+	// wide columns (the criteria, the active deviations) are fetched for those rows only,
+	// re-sorted by the same expressions. The total is an uncorrelated subquery, evaluated once: a
+	// window count would force a full sort.
 	return {
 		sql: `with page as (select l.id ${fromWith(order.joins)} ${where.sql} ${order.sql} limit ? offset ?)
 		select ${LIST_COLUMNS},
