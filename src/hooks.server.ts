@@ -6,7 +6,9 @@ import { handleSecurityHeaders } from '$lib/server/hooks/security-headers';
 import { handleAuth } from '$lib/server/hooks/auth';
 import { handleCsrf } from '$lib/server/hooks/csrf';
 import { handleOutage } from '$lib/server/hooks/outage';
-import { authSecret, oidcSettings } from '$lib/server/config';
+import { handleRegistryWrites } from '$lib/server/hooks/registry-writes';
+import { authSecret, databaseUrl, oidcSettings, registryCacheEnabled } from '$lib/server/config';
+import { startRegistryChanges, stopRegistryChanges } from '$lib/server/db/registry-changes';
 import { closeOrm } from '$lib/server/db/orm';
 import { stopBoss } from '$lib/server/jobs/boss';
 
@@ -17,14 +19,23 @@ export { handleError } from '$lib/server/hooks/error';
 export const init: ServerInit = async () => {
 	authSecret();
 	oidcSettings();
+	// Not awaited: the server answers (uncached) while PostgreSQL is still out of reach.
+	if (!building && registryCacheEnabled()) void startRegistryChanges(databaseUrl());
 };
 
-export const handle = sequence(handleRequestId, handleSecurityHeaders, handleOutage, handleCsrf, handleAuth);
+export const handle = sequence(
+	handleRequestId,
+	handleSecurityHeaders,
+	handleOutage,
+	handleCsrf,
+	handleRegistryWrites,
+	handleAuth
+);
 
 if (!building) {
 	// adapter-node emits this on SIGINT/SIGTERM once requests have drained; without closing the
 	// pools the process would never exit.
 	process.on('sveltekit:shutdown', async () => {
-		await Promise.allSettled([stopBoss(), closeOrm()]);
+		await Promise.allSettled([stopBoss(), closeOrm(), stopRegistryChanges()]);
 	});
 }

@@ -38,6 +38,14 @@ export function s3Settings(): S3Settings {
 	};
 }
 
+/**
+ * Does the web server keep loop counts until the registry changes (db/registry-changes.ts)?
+ * HEADROOM_REGISTRY_CACHE=off makes every request count afresh (bench:web compares both).
+ */
+export function registryCacheEnabled(): boolean {
+	return process.env.HEADROOM_REGISTRY_CACHE !== 'off';
+}
+
 export function smtpUrl(): string {
 	return process.env.SMTP_URL || 'smtp://127.0.0.1:1025';
 }

@@ -8,6 +8,7 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { VERDICTS, type Verdict } from '../../compliance/judge';
 import { fromWith, whereOf, type LoopFilters } from './loop-query';
+import { remembered } from '../db/registry-changes';
 
 export type VerdictCounts = Record<Verdict, number>;
 
@@ -47,8 +48,22 @@ async function grouped(em: EntityManager, f: LoopFilters, dim: 'p' | 'c'): Promi
 	return [...groups.values()];
 }
 
+/**
+ * The counts for a filter (its `verdict` plays no part), remembered until the registry next
+ * changes (db/registry-changes.ts). The value is shared between callers: never mutate it.
+ */
 export async function loopSummary(em: EntityManager, f: LoopFilters): Promise<LoopSummary> {
 	const where = whereOf(f, ['verdict']);
+	return remembered(em, `loops.summary ${where.sql} ${JSON.stringify(where.params)}`, () =>
+		countSummary(em, f, where)
+	);
+}
+
+async function countSummary(
+	em: EntityManager,
+	f: LoopFilters,
+	where: { sql: string; params: unknown[] }
+): Promise<LoopSummary> {
 	const [rows, products, classes] = await Promise.all([
 		em
 			.getConnection()

@@ -28,6 +28,7 @@ import { loopSnapshot, recordAudit } from './audit';
 import { findOwner } from './people';
 import { activeDeviationCounts } from './deviations';
 import { preparedRows } from '../db/prepared';
+import { shareResult } from '../db/registry-changes';
 
 export interface LoopView {
 	id: string;
@@ -160,7 +161,8 @@ function listItem(r: ListRow, activeDeviations: number): LoopListItem {
 export function listQuery(
 	f: LoopFilters,
 	limit: number,
-	offset: number
+	offset: number,
+	withTotal = true
 ): { sql: string; params: unknown[] } {
 	const where = whereOf(f);
 	const order = orderOf(f);
@@ -169,20 +171,27 @@ export function listQuery(
 	// wide columns (the criteria, the active deviations) are fetched for those rows only,
 	// re-sorted by the same expressions. The total is an uncorrelated subquery, evaluated once: a
 	// window count would force a full sort.
+	const total = withTotal ? `(select count(*) from loop l ${where.sql})` : 'null::bigint';
 	return {
 		sql: `with page as (select l.id ${fromWith(order.joins)} ${where.sql} ${order.sql} limit ? offset ?)
 		select ${LIST_COLUMNS},
-		       (select count(*) from loop l ${where.sql}) as total,
+		       ${total} as total,
 		       (select count(*)::int from deviation d where d.loop_id = l.id and d.revoked_at is null
 		          and d.starts_at <= now() and d.expires_at > now()) as active_deviations
 		from page join loop l on l.id = page.id ${JOINS}
 		${order.sql}`,
-		params: [...where.params, limit, offset, ...where.params]
+		params: [...where.params, limit, offset, ...(withTotal ? where.params : [])]
 	};
 }
 
-async function pageRows(em: EntityManager, f: LoopFilters, limit: number, offset: number) {
-	const q = listQuery(f, limit, offset);
+async function pageRows(
+	em: EntityManager,
+	f: LoopFilters,
+	limit: number,
+	offset: number,
+	withTotal = true
+) {
+	const q = listQuery(f, limit, offset, withTotal);
 	const rows = await preparedRows<ListRow>(em, q.sql, q.params);
 	return { rows, items: rows.map((r) => listItem(r, r.active_deviations)) };
 }
@@ -207,20 +216,39 @@ export async function countLoops(em: EntityManager, f: LoopFilters): Promise<num
 	return n;
 }
 
-/** One page of the list, filtered and sorted in PostgreSQL, with the number of matching loops. */
+/** The key a filter's total is remembered under (registry-changes.ts): its SQL and values. */
+const totalKey = (f: LoopFilters) => {
+	const where = whereOf(f);
+	return `loops.total ${where.sql} ${JSON.stringify(where.params)}`;
+};
+
+/**
+ * One page of the list, filtered and sorted in PostgreSQL, with the number of matching loops.
+ * The number is remembered until the registry next changes (the web server listens for that),
+ * so paging through a filter, or many people on one view, count its loops once; requests that
+ * arrive together after a change count it once between them.
+ */
 export async function listLoops(
 	em: EntityManager,
 	f: LoopFilters,
 	paging: Paging
 ): Promise<PageOf<LoopListItem>> {
-	const { rows, items } = await pageRows(em, f, paging.pageSize, offsetOf(paging));
-	// A page past the end has no row to carry the total: count separately then.
-	const total = rows.length
-		? Number(rows[0].total)
-		: offsetOf(paging)
-			? await countLoops(em, f)
-			: 0;
-	return { items, total, ...paging };
+	const offset = offsetOf(paging);
+	const share = shareResult<number>(em, totalKey(f));
+	let total: number | undefined;
+	try {
+		const counted = share.known === undefined && !share.wait;
+		const { rows, items } = await pageRows(em, f, paging.pageSize, offset, counted);
+		if (counted) total = rows.length ? Number(rows[0].total) : offset ? undefined : 0;
+		else total = share.known ?? (await share.wait);
+		// A page past the end has no row to carry the total, another request's count may have
+		// failed, and a remembered one may predate a change notified while the page was read:
+		// count then.
+		if (total === undefined || !share.current()) total = await countLoops(em, f);
+		return { items, total, ...paging };
+	} finally {
+		share.lead?.(total);
+	}
 }
 
 export async function loopById(em: EntityManager, id: string): Promise<Loop> {

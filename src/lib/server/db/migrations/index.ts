@@ -8,6 +8,7 @@ import { Migration20261202032610_reports } from './Migration20261202032610_repor
 import { Migration20261202033500_digest } from './Migration20261202033500_digest';
 import { Migration20261202033800_dashboard } from './Migration20261202033800_dashboard';
 import { Migration20261202140000_activity } from './Migration20261202140000_activity';
+import { Migration20261202170000_registry_changes } from './Migration20261202170000_registry_changes';
 
 export const migrationsList: MigrationObject[] = [
 	{ name: 'Migration20261201224031_initial', class: Migration20261201224031_initial },
@@ -18,4 +19,5 @@ export const migrationsList: MigrationObject[] = [
 	{ name: 'Migration20261202033500_digest', class: Migration20261202033500_digest },
 	{ name: 'Migration20261202033800_dashboard', class: Migration20261202033800_dashboard },
 	{ name: 'Migration20261202140000_activity', class: Migration20261202140000_activity },
+	{ name: 'Migration20261202170000_registry_changes', class: Migration20261202170000_registry_changes },
 ];
