@@ -37,8 +37,9 @@ export interface OctaveMargin {
 }
 
 const MISSING =
-	'octave-cli was not found: the reference tests need Debian octave-cli with the control package ' +
-	'(apt-get install -y octave-cli octave-control). Install it; these tests do not skip.';
+	'octave-cli was not found: the reference tests need Octave with its control package, from ' +
+	"Debian's packages octave and octave-control (apt-get install -y octave octave-control; " +
+	'`npm test` installs them when missing). Install it; these tests do not skip.';
 
 // Printed by Octave 7 on exit in some builds even after a clean run; it carries no information.
 const HARMLESS = /^error: ignoring const execution_exception& while preparing to exit\s*$/;

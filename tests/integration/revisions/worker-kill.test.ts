@@ -75,7 +75,14 @@ describe('a worker killed mid-job', () => {
 		expect((await one<{ n: number }>('select count(*)::int as n from margin_report where revision_id = ?', [rev.id])).n).toBe(1);
 		const loop = await one<{ verdict: string; judged_revision_id: string }>('select verdict, judged_revision_id from loop where id = ?', [scenario.loop.id]);
 		expect(loop).toEqual({ verdict: 'noncompliant', judged_revision_id: rev.id });
-		const events = await r.em().getConnection().execute<{ verdict: string }[]>('select verdict from verdict_event where loop_id = ?', [scenario.loop.id]);
-		expect(events.map((e) => e.verdict)).toEqual(['noncompliant']);
+		const events = await r
+			.em()
+			.getConnection()
+			.execute<{ verdict: string }[]>('select verdict from verdict_event where loop_id = ? order by at', [scenario.loop.id]);
+		// One judgement of the computed revision. Before it, the class's re-judge job (queued when
+		// the scenario created the class) may have run while the revision was still in flight, on
+		// a loaded machine, and recorded the loop as `pending`; nothing else may appear.
+		expect(events.map((e) => e.verdict).filter((v) => v !== 'pending')).toEqual(['noncompliant']);
+		expect(events.length).toBeLessThanOrEqual(2);
 	});
 });

@@ -25,14 +25,22 @@ const handleLocals: Handle = async ({ event, resolve }) => {
 	} else {
 		const session = await event.locals.auth();
 		const userId = session?.user?.id;
-		if (userId) principal = await principalFromSession(await forkEm(), { userId, signedInAt: session.signedInAt });
+		if (userId)
+			principal = await principalFromSession(await forkEm(), {
+				userId,
+				signedInAt: session.signedInAt
+			});
 	}
 	event.locals.user = principal?.user ?? null;
 	event.locals.scopes = principal?.scopes ?? [];
 	// Defence in depth: the route's guard answers the same, but an anonymous API call should not
 	// reach route code at all.
 	if (api && !event.locals.user && !PUBLIC_API.has(event.url.pathname)) {
-		return apiError(401, 'unauthenticated', 'Sign in or send an API token (Authorization: Bearer …).');
+		return apiError(
+			401,
+			'unauthenticated',
+			'Sign in or send an API token (Authorization: Bearer …).'
+		);
 	}
 	return resolve(event);
 };
@@ -56,8 +64,16 @@ const handleCookieSecurity: Handle = async ({ event, resolve }) => {
  * answer, so hand them a mutable copy.
  */
 const handleAuthRoutes: Handle = async (input) => {
+	// An API call with a token is authenticated by the token alone (handleLocals) and never by
+	// the session cookie; Auth.js, which builds its configuration for every request it sees,
+	// has nothing to do for it.
+	const { event } = input;
+	if (isApiPath(event.url) && event.request.headers.has('authorization'))
+		return input.resolve(event);
 	const response = await handleAuthJs(input);
-	return input.event.url.pathname.startsWith('/auth/') ? new Response(response.body, response) : response;
+	return input.event.url.pathname.startsWith('/auth/')
+		? new Response(response.body, response)
+		: response;
 };
 
 export const handleAuth: Handle = sequence(handleCookieSecurity, handleAuthRoutes, handleLocals);
