@@ -184,6 +184,47 @@ export function listQuery(
 	};
 }
 
+const isoText = (column: string) =>
+	`to_char(${column} at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"')`;
+
+/**
+ * The JSON of a page's items as listItem() shapes them, built by PostgreSQL: the API answers
+ * with this text as it comes, with no row objects to parse, build and serialise again.
+ * list-json.test.ts holds it equal to listItem's output.
+ */
+const ITEM_JSON = `json_build_object(
+	'id', l.id, 'key', l.key, 'name', l.name,
+	'product', json_build_object('id', p.id, 'key', p.key, 'name', p.name),
+	'class', json_build_object('id', c.id, 'key', c.key, 'name', c.name),
+	'owner', json_build_object('id', u.id, 'name', u.name, 'email', u.email),
+	'tags', l.tags, 'note', l.note, 'verdict', l.verdict,
+	'activeDeviations', (select count(*)::int from deviation d where d.loop_id = l.id and d.revoked_at is null
+		and d.starts_at <= now() and d.expires_at > now()),
+	'archivedAt', ${isoText('l.archived_at')}, 'createdAt', ${isoText('l.created_at')}, 'updatedAt', ${isoText('l.updated_at')},
+	'worstCase', json_build_object('phaseMarginDeg', l.wc_phase_margin_deg, 'upperGainMarginDb', l.wc_upper_gain_margin_db,
+		'delayMarginS', l.wc_delay_margin_s, 'modulusMargin', l.wc_modulus_margin),
+	'criteria', coalesce(l.verdict_detail->'criteria', '[]'::jsonb),
+	'failing', l.failing_criteria, 'worstShortfall', l.worst_shortfall,
+	'judgedAt', ${isoText('l.judged_at')}, 'verdictChangedAt', ${isoText('l.verdict_changed_at')})`;
+
+/** One row: the page's items as JSON text (in list order) and, if asked, the total. */
+export function listJsonQuery(
+	f: LoopFilters,
+	limit: number,
+	offset: number,
+	withTotal = true
+): { sql: string; params: unknown[] } {
+	const where = whereOf(f);
+	const order = orderOf(f);
+	const total = withTotal ? `(select count(*) from loop l ${where.sql})` : 'null::bigint';
+	return {
+		sql: `with page as (select l.id ${fromWith(order.joins)} ${where.sql} ${order.sql} limit ? offset ?)
+		select coalesce(json_agg(${ITEM_JSON} ${order.sql}), '[]')::text as items, ${total} as total
+		from page join loop l on l.id = page.id ${JOINS}`,
+		params: [...where.params, limit, offset, ...(withTotal ? where.params : [])]
+	};
+}
+
 async function pageRows(
 	em: EntityManager,
 	f: LoopFilters,
@@ -223,32 +264,65 @@ const totalKey = (f: LoopFilters) => {
 };
 
 /**
- * One page of the list, filtered and sorted in PostgreSQL, with the number of matching loops.
- * The number is remembered until the registry next changes (the web server listens for that),
- * so paging through a filter, or many people on one view, count its loops once; requests that
- * arrive together after a change count it once between them.
+ * A page and the number of loops its filter matches. The number is remembered until the
+ * registry next changes (the web server listens for that), so paging through a filter, or many
+ * people on one view, count its loops once; requests that arrive together after a change count
+ * it once between them. `read(withTotal)` fetches the page, and the total with it when asked
+ * (undefined when its rows cannot carry it).
  */
+async function withTotal<T>(
+	em: EntityManager,
+	f: LoopFilters,
+	read: (withTotal: boolean) => Promise<{ page: T; total: number | undefined }>
+): Promise<{ page: T; total: number }> {
+	const share = shareResult<number>(em, totalKey(f));
+	let total: number | undefined;
+	try {
+		const counted = share.known === undefined && !share.wait;
+		const result = await read(counted);
+		total = counted ? result.total : (share.known ?? (await share.wait));
+		// A page past the end has no row to carry the total, another request's count may have
+		// failed, and a remembered one may predate a change notified while the page was read:
+		// count then.
+		if (total === undefined || !share.current()) total = await countLoops(em, f);
+		return { page: result.page, total };
+	} finally {
+		share.lead?.(total);
+	}
+}
+
+/** One page of the list, filtered and sorted in PostgreSQL, with the number of matching loops. */
 export async function listLoops(
 	em: EntityManager,
 	f: LoopFilters,
 	paging: Paging
 ): Promise<PageOf<LoopListItem>> {
 	const offset = offsetOf(paging);
-	const share = shareResult<number>(em, totalKey(f));
-	let total: number | undefined;
-	try {
-		const counted = share.known === undefined && !share.wait;
+	const { page, total } = await withTotal(em, f, async (counted) => {
 		const { rows, items } = await pageRows(em, f, paging.pageSize, offset, counted);
-		if (counted) total = rows.length ? Number(rows[0].total) : offset ? undefined : 0;
-		else total = share.known ?? (await share.wait);
-		// A page past the end has no row to carry the total, another request's count may have
-		// failed, and a remembered one may predate a change notified while the page was read:
-		// count then.
-		if (total === undefined || !share.current()) total = await countLoops(em, f);
-		return { items, total, ...paging };
-	} finally {
-		share.lead?.(total);
-	}
+		return {
+			page: items,
+			total: rows.length ? Number(rows[0].total) : offset ? undefined : 0
+		};
+	});
+	return { items: page, total, ...paging };
+}
+
+/**
+ * The same page as listLoops, as the JSON text of its PageOf (what GET /api/loops answers),
+ * rendered by PostgreSQL (listJsonQuery).
+ */
+export async function listLoopsJson(
+	em: EntityManager,
+	f: LoopFilters,
+	paging: Paging
+): Promise<string> {
+	const { page, total } = await withTotal(em, f, async (counted) => {
+		const q = listJsonQuery(f, paging.pageSize, offsetOf(paging), counted);
+		const [row] = await preparedRows<{ items: string; total: string | null }>(em, q.sql, q.params);
+		return { page: row.items, total: row.total === null ? undefined : Number(row.total) };
+	});
+	return `{"items":${page},"total":${total},"page":${paging.page},"pageSize":${paging.pageSize}}`;
 }
 
 export async function loopById(em: EntityManager, id: string): Promise<Loop> {

@@ -4,7 +4,7 @@ import { readJsonObject } from '$lib/server/http/body';
 import { requireRole, requireScope } from '$lib/server/auth/guard';
 import { forkEm } from '$lib/server/db/orm';
 import { pagingFrom } from '$lib/server/registry/common';
-import { createLoop, listLoops, loopFiltersFrom } from '$lib/server/registry/loops';
+import { createLoop, listLoopsJson, loopFiltersFrom } from '$lib/server/registry/loops';
 import type { RequestHandler } from './$types';
 
 /**
@@ -15,7 +15,14 @@ export const GET = (async (event) =>
 	api(async () => {
 		requireScope(event, 'read');
 		const params = event.url.searchParams;
-		return json(await listLoops(await forkEm(), loopFiltersFrom(params), pagingFrom(params)));
+		// PostgreSQL renders the page's JSON (listLoopsJson): no rows to parse and serialise again.
+		const body = await listLoopsJson(await forkEm(), loopFiltersFrom(params), pagingFrom(params));
+		return new Response(body, {
+			headers: {
+				'content-type': 'application/json',
+				'content-length': String(Buffer.byteLength(body))
+			}
+		});
 	})) satisfies RequestHandler;
 
 /** Body: { product, class, key, name, owner? (e-mail; default you), tags?: [], note? }. */
