@@ -194,14 +194,22 @@ export function continuousCrossings(ev: ContinuousEval): RationalCrossings {
 	const H = continuousPhasePoly(n, d);
 	const gainW = vanishes(G, scale) ? [] : realRootsIn(G, 0, Infinity).filter((w) => w > 0);
 	const phaseW = vanishes(H, scale) ? [] : realRootsIn(H, 0, Infinity).filter((w) => w > 0);
-	const toOmega = (w: number) => ev.w0 * Math.sqrt(w);
 	// far beyond every root the phase only creeps towards its asymptote; a "crossing" out there
 	// is that asymptote (−180°, relative degree 2) touched by rounding
 	const beyond = 1e4 * ev.w0 * Math.max(rootBound(n), rootBound(d));
-	const gain = confirm(ev, gainW.map(toOmega), gainResidual, false);
-	const phase = confirm(ev, phaseW.map(toOmega), phaseResidual, true).filter(
-		(c) => beyond === 0 || c.f <= beyond
+	const w0 = ev.w0;
+	const gain = confirm(
+		ev,
+		gainW.map((w) => w0 * Math.sqrt(w)),
+		gainResidual,
+		false
 	);
+	const phase = confirm(
+		ev,
+		phaseW.map((w) => w0 * Math.sqrt(w)),
+		phaseResidual,
+		true
+	).filter((c) => beyond === 0 || c.f <= beyond);
 	const l0 = ev.atZero();
 	if (Number.isFinite(l0) && l0 < 0) phase.unshift({ f: 0, re: l0, im: 0 });
 	return { gain, phase };
@@ -226,8 +234,8 @@ const sumAbs = (p: Poly) => p.reduce((s, x) => s + Math.abs(x), 0);
 function circleCandidates(numW: Poly, denW: Poly, g: number): { gain: number[]; phase: number[] } {
 	const nV = shiftTo(numW, -2);
 	const dV = shiftTo(denW, -2);
-	const scaleOf = (n: Poly, d: Poly) => (g * sumAbs(n)) ** 2 + sumAbs(d) ** 2;
-	const [scaleW, scaleV] = [scaleOf(numW, denW), scaleOf(nV, dV)];
+	const scaleW = (g * sumAbs(numW)) ** 2 + sumAbs(denW) ** 2;
+	const scaleV = (g * sumAbs(nV)) ** 2 + sumAbs(dV) ** 2;
 	// the two halves meet at u = 2; the end points themselves are judged separately
 	const gain = bothHalves(
 		gainPolyU(numW, denW, g, 1),

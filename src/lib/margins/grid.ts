@@ -44,16 +44,18 @@ export function withFeatures(
 	if (add.length === 0) return grid;
 	add.sort((a, b) => a - b);
 	const out: number[] = [];
-	const push = (f: number) => {
-		if (out.length === 0 || f > out[out.length - 1] * (1 + 1e-12)) out.push(f);
-	};
 	let j = 0;
 	for (const g of grid) {
-		while (j < add.length && add[j] < g) push(add[j++]);
-		push(g);
+		while (j < add.length && add[j] < g) pushDistinct(out, add[j++]);
+		pushDistinct(out, g);
 	}
-	while (j < add.length) push(add[j++]);
+	while (j < add.length) pushDistinct(out, add[j++]);
 	return out;
+}
+
+/** Appends f unless it repeats the last point (a module function: no closure per call). */
+function pushDistinct(out: number[], f: number): void {
+	if (out.length === 0 || f > out[out.length - 1] * (1 + 1e-12)) out.push(f);
 }
 
 /** [lo, hi] spanning `spread` beyond the outermost positive feature frequencies. */

@@ -21,31 +21,43 @@ interface Interp {
 }
 
 export function loopRoots(loop: CaseLoop): { zeros: Roots; poles: Roots } {
-	const find = loop.T === null ? polyRoots : zRoots;
-	// sampled factors with exact coefficients in w = z − 1 give their roots from those
-	const zerosOf = (f: Factor) =>
-		f.zeros ??
-		(f.numW ? wRoots(f.numW, true) : loop.T === null ? polyRoots(f.num) : zRoots(f.num, true));
-	const polesOf = (f: Factor) => f.poles ?? (f.denW ? wRoots(f.denW) : find(f.den));
-	const collect = (pick: (i: number) => Roots): Roots => {
-		const parts = loop.factors.map((_, i) => pick(i));
-		const n = parts.reduce((s, r) => s + r.re.length, 0);
-		const re = new Float64Array(n);
-		const im = new Float64Array(n);
-		const offRe = new Float64Array(n);
-		let o = 0;
-		for (const r of parts) {
-			re.set(r.re, o);
-			im.set(r.im, o);
-			for (let i = 0; i < r.re.length; i++) offRe[o + i] = r.offRe ? r.offRe[i] : 1 - r.re[i];
-			o += r.re.length;
-		}
-		return { re, im, offRe, atOne: parts.reduce((s, r) => s + (r.atOne ?? 0), 0) };
-	};
+	const sampled = loop.T !== null;
 	return {
-		zeros: collect((i) => zerosOf(loop.factors[i])),
-		poles: collect((i) => polesOf(loop.factors[i]))
+		zeros: collect(loop.factors.map((f) => zerosOf(f, sampled))),
+		poles: collect(loop.factors.map((f) => polesOf(f, sampled)))
 	};
+}
+
+// sampled factors with exact coefficients in w = z − 1 give their roots from those
+function zerosOf(f: Factor, sampled: boolean): Roots {
+	return (
+		f.zeros ?? (f.numW ? wRoots(f.numW, true) : sampled ? zRoots(f.num, true) : polyRoots(f.num))
+	);
+}
+
+function polesOf(f: Factor, sampled: boolean): Roots {
+	return f.poles ?? (f.denW ? wRoots(f.denW) : sampled ? zRoots(f.den) : polyRoots(f.den));
+}
+
+/** The factors' roots in one list (1 − r alongside, for sampled loops). */
+function collect(parts: Roots[]): Roots {
+	let n = 0;
+	let atOne = 0;
+	for (const r of parts) {
+		n += r.re.length;
+		atOne += r.atOne ?? 0;
+	}
+	const re = new Float64Array(n);
+	const im = new Float64Array(n);
+	const offRe = new Float64Array(n);
+	let o = 0;
+	for (const r of parts) {
+		re.set(r.re, o);
+		im.set(r.im, o);
+		for (let i = 0; i < r.re.length; i++) offRe[o + i] = r.offRe ? r.offRe[i] : 1 - r.re[i];
+		o += r.re.length;
+	}
+	return { re, im, offRe, atOne };
 }
 
 export class LoopResponse {
@@ -71,8 +83,7 @@ export class LoopResponse {
 		this.T = loop.T;
 		this.zeros = roots.zeros;
 		this.poles = roots.poles;
-		const lead = (p: number[]) => p[p.length - 1];
-		this.lead = (loop.gain * lead(loop.num)) / lead(loop.den);
+		this.lead = (loop.gain * loop.num[loop.num.length - 1]) / loop.den[loop.den.length - 1];
 		this.delay = this.sampled ? loop.delaySamples : loop.delaySeconds;
 		this.interp = loop.measured.map(toInterp);
 		this.zOff = this.zeros.offRe ?? Float64Array.from(this.zeros.re, (x) => 1 - x);
