@@ -128,22 +128,24 @@ const CERTIFIED = 1e-6;
  */
 function newtonPolygonStarts(p: readonly number[], re: Float64Array, im: Float64Array): void {
 	const n = p.length - 1;
-	const hull: number[] = [];
 	const lg = new Float64Array(n + 1);
 	for (let i = 0; i <= n; i++) lg[i] = p[i] === 0 ? -Infinity : Math.log(Math.abs(p[i]));
+	// the hull as a stack of indices
+	const hull = new Int32Array(n + 1);
+	let top = 0;
 	for (let i = 0; i <= n; i++) {
 		if (lg[i] === -Infinity) continue;
 		// pop while the last two hull points and i make a non-right turn (keep the upper hull)
-		while (hull.length >= 2) {
-			const a = hull[hull.length - 2];
-			const b = hull[hull.length - 1];
-			if ((lg[b] - lg[a]) * (i - a) <= (lg[i] - lg[a]) * (b - a)) hull.pop();
+		while (top >= 2) {
+			const a = hull[top - 2];
+			const b = hull[top - 1];
+			if ((lg[b] - lg[a]) * (i - a) <= (lg[i] - lg[a]) * (b - a)) top--;
 			else break;
 		}
-		hull.push(i);
+		hull[top++] = i;
 	}
 	let k = 0;
-	for (let e = 0; e + 1 < hull.length; e++) {
+	for (let e = 0; e + 1 < top; e++) {
 		const m = hull[e + 1] - hull[e];
 		const radius = Math.exp((lg[hull[e]] - lg[hull[e + 1]]) / m);
 		// off the real axis and rotated per edge, so no start is real and no two coincide; the

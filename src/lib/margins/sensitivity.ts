@@ -4,7 +4,7 @@
  * caller's: it must already be dense where these functions have narrow features (near lightly
  * damped closed-loop poles).
  */
-import { brentMin, parabolicMin } from './brent';
+import { parabolicMin } from './brent';
 
 export interface PointEval {
 	at(f: number): void;
@@ -33,6 +33,7 @@ const modulusOf = (re: number, im: number) => (1 + re) * (1 + re) + im * im;
  * damped closed-loop pole) needs its position far below its own width.
  */
 const REFINE_TOL = 1e-10;
+const GOLDEN = 0.3819660112501051;
 
 const halfOf = (re: number, im: number) => {
 	const m = (1 + re) * (1 + re) + im * im;
@@ -129,20 +130,32 @@ function refineExtrema(
 		const a = Math.log(grid[Math.max(0, i - 1)]);
 		const b = Math.log(grid[Math.min(n - 1, i + 1)]);
 		if (!(b > a)) continue;
-		// an interior grid minimum already brackets; only band ends need a blind search
-		const [u, v] =
-			i > 0 && i < n - 1
-				? parabolicMin(
-						(x) => objective(ev, sign, of, x),
-						a,
-						sign * vals[i - 1],
-						Math.log(grid[i]),
-						sign * vals[i],
-						b,
-						sign * vals[i + 1],
-						REFINE_TOL
-					)
-				: brentMin((x) => objective(ev, sign, of, x), a, b, REFINE_TOL);
+		let u: number;
+		let v: number;
+		if (i > 0 && i < n - 1)
+			// an interior grid minimum already brackets
+			[u, v] = parabolicMin(
+				(x) => objective(ev, sign, of, x),
+				a,
+				sign * vals[i - 1],
+				Math.log(grid[i]),
+				sign * vals[i],
+				b,
+				sign * vals[i + 1],
+				REFINE_TOL
+			);
+		else {
+			// a band end: one probe at the golden point nearer the end. Below the end's value, it
+			// brackets a minimum inside; otherwise the function rises from the end, whose grid value
+			// stands (a blind search would only creep towards it, some forty evaluations)
+			const end = sign * vals[i];
+			const other = sign * vals[i === 0 ? 1 : n - 2];
+			const g = i === 0 ? a + GOLDEN * (b - a) : b - GOLDEN * (b - a);
+			const probe = objective(ev, sign, of, g);
+			if (!(probe < end)) continue;
+			const [fa, fb] = i === 0 ? [end, other] : [other, end];
+			[u, v] = parabolicMin((x) => objective(ev, sign, of, x), a, fa, g, probe, b, fb, REFINE_TOL);
+		}
 		if (v < best) [best, bestF] = [v, Math.exp(u)];
 	}
 	return [sign * best, bestF];
