@@ -121,6 +121,17 @@ const FAST_SWEEPS = 40;
 /** Inclusion-disc radius, relative to its root, below which a root is taken as certified. */
 const CERTIFIED = 1e-6;
 
+// Start directions: off the real axis (0.7 rad), m starts a turn of 2π/m apart along an edge
+// of the polygon, and each edge rotated by the golden angle from the last, so that no start is
+// real and no two coincide. Constants, so that no start costs a cosine or a sine.
+const START_COS = Math.cos(0.7);
+const START_SIN = Math.sin(0.7);
+const EDGE_COS = Math.cos(Math.PI * (3 - Math.sqrt(5)));
+const EDGE_SIN = Math.sin(Math.PI * (3 - Math.sqrt(5)));
+const TURNS = 32;
+const TURN_COS = Float64Array.from({ length: TURNS }, (_, m) => Math.cos((2 * Math.PI) / m));
+const TURN_SIN = Float64Array.from({ length: TURNS }, (_, m) => Math.sin((2 * Math.PI) / m));
+
 /**
  * Starting points on circles from the Newton polygon of p (ascending): the upper convex hull of
  * (i, ln|p_i|). Each hull edge from k to k + m holds m roots of modulus about
@@ -145,16 +156,16 @@ function newtonPolygonStarts(p: readonly number[], re: Float64Array, im: Float64
 		hull[top++] = i;
 	}
 	let k = 0;
+	// (cr, ci): the unit direction of each edge's first start, turned by the golden angle per edge
+	let cr = START_COS;
+	let ci = START_SIN;
 	for (let e = 0; e + 1 < top; e++) {
 		const m = hull[e + 1] - hull[e];
 		const radius = Math.exp((lg[hull[e]] - lg[hull[e + 1]]) / m);
-		// off the real axis and rotated per edge, so no start is real and no two coincide; the
-		// circle is walked by rotation (one cosine and sine per edge, not per root)
-		const first = (2 * Math.PI * e) / n + 0.7;
-		let c = radius * Math.cos(first);
-		let s = radius * Math.sin(first);
-		const dc = Math.cos((2 * Math.PI) / m);
-		const ds = Math.sin((2 * Math.PI) / m);
+		let c = radius * cr;
+		let s = radius * ci;
+		const dc = m < TURNS ? TURN_COS[m] : Math.cos((2 * Math.PI) / m);
+		const ds = m < TURNS ? TURN_SIN[m] : Math.sin((2 * Math.PI) / m);
 		for (let t = 0; t < m; t++) {
 			re[k] = c;
 			im[k] = s;
@@ -163,6 +174,9 @@ function newtonPolygonStarts(p: readonly number[], re: Float64Array, im: Float64
 			s = c * ds + s * dc;
 			c = next;
 		}
+		const next = cr * EDGE_COS - ci * EDGE_SIN;
+		ci = cr * EDGE_SIN + ci * EDGE_COS;
+		cr = next;
 	}
 }
 

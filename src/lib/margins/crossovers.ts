@@ -15,7 +15,7 @@ import type { ContinuousEval, LoopEval } from './rational-eval';
 import { chebyshevRealRoots } from './chebyshev';
 import { polyRoots, type Roots } from './roots';
 import { reflectedRoots } from './reflect';
-import { loneRoot, noPositiveRoots, noRootsOnSegment } from './descartes';
+import { loneRoot, segmentSignChanges, signChanges } from './descartes';
 import { hypot } from './hypot';
 
 /** A point of the frequency axis: f is ω in rad/s (continuous) or θ = ωT in rad (sampled). */
@@ -30,27 +30,33 @@ const ACCEPT = 1e-9;
 const SEGMENT = 2.5;
 const NEAR_REAL = 1e-2;
 
-/** No root near the real axis in [lo, hi] (Descartes–Obreshkoff): no eigenvalues needed. */
-function certifiedEmpty(p: Poly, lo: number, hi: number): boolean {
-	return hi === Infinity
-		? lo === 0 && noPositiveRoots(p)
-		: lo > -1e-9 && hi < SEGMENT && noRootsOnSegment(p, SEGMENT);
+/**
+ * Descartes–Obreshkoff's count for the sector (hi = Infinity, from 0) or the lens over
+ * [0, SEGMENT] that holds every root near the real axis in [lo, hi]; −1 when neither covers the
+ * search or a sign is not sure. 0: no root there, no eigenvalues needed.
+ */
+function regionChanges(p: Poly, lo: number, hi: number): number {
+	if (hi === Infinity) return lo === 0 ? signChanges(p) : -1;
+	return lo > -1e-9 && hi < SEGMENT ? segmentSignChanges(p, SEGMENT) : -1;
 }
 
-const needsRoots = (p: Poly, lo: number, hi: number): boolean =>
-	p.length >= 2 && maxAbs(p) !== 0 && !certifiedEmpty(p, lo, hi);
+/** changes: regionChanges of p over the search. */
+const needsRoots = (p: Poly, changes: number): boolean =>
+	p.length >= 2 && maxAbs(p) !== 0 && changes !== 0;
 
 /**
  * The roots a real-root search in [lo, hi] must look at; null when there are none. When the
  * coefficients certify a single root in the searched sector or lens, that real root alone, found
- * by bracketing: no eigenvalues needed either.
+ * by bracketing: no eigenvalues needed either. `changes`: regionChanges(p, lo, hi).
  */
-function searchedRoots(p: Poly, lo: number, hi: number): Roots | null {
-	if (!needsRoots(p, lo, hi)) return null;
-	const x =
-		lo >= 0 && (hi === Infinity || hi < SEGMENT)
-			? loneRoot(p, hi === Infinity ? hi : SEGMENT)
-			: null;
+function searchedRoots(
+	p: Poly,
+	lo: number,
+	hi: number,
+	changes = regionChanges(p, lo, hi)
+): Roots | null {
+	if (!needsRoots(p, changes)) return null;
+	const x = lo >= 0 ? loneRoot(p, hi === Infinity ? hi : SEGMENT, changes) : null;
 	return x === null ? polyRoots(p) : { re: Float64Array.of(x), im: Float64Array.of(0) };
 }
 
@@ -263,10 +269,12 @@ function bothHalves(
 	const rootsW = vanishes(plus, scaleW) ? null : searchedRoots(plus, loW, HI);
 	// reflection needs all of P₊'s roots (not a lone one found by bracketing)
 	const all = rootsW && rootsW.re.length === plus.length - 1 ? rootsW : null;
+	const changesV = regionChanges(minus, loV, HI);
 	const rootsV =
-		vanishes(minus, scaleV) || !needsRoots(minus, loV, HI)
+		vanishes(minus, scaleV) || !needsRoots(minus, changesV)
 			? null
-			: ((all && reflectedRoots(minus, all, plus.length - 1)) ?? searchedRoots(minus, loV, HI));
+			: ((all && reflectedRoots(minus, all, plus.length - 1)) ??
+				searchedRoots(minus, loV, HI, changesV));
 	return [
 		...nearRealIn(rootsW, loW, HI).map((u) => thetaFromU(u, 1)),
 		...nearRealIn(rootsV, loV, HI).map((u) => thetaFromU(u, -1))

@@ -42,14 +42,15 @@ export function withFeatures(
 	}
 	for (const f of extra) if (f >= lo && f <= hi) add.push(f);
 	if (add.length === 0) return grid;
-	add.sort((a, b) => a - b);
+	// a typed array sorts numerically in native code, several times faster than a comparator
+	const sorted = Float64Array.from(add).sort();
 	const out: number[] = [];
 	let j = 0;
 	for (const g of grid) {
-		while (j < add.length && add[j] < g) pushDistinct(out, add[j++]);
+		while (j < sorted.length && sorted[j] < g) pushDistinct(out, sorted[j++]);
 		pushDistinct(out, g);
 	}
-	while (j < add.length) pushDistinct(out, add[j++]);
+	while (j < sorted.length) pushDistinct(out, sorted[j++]);
 	return out;
 }
 
