@@ -200,9 +200,6 @@ export function continuousCrossings(ev: ContinuousEval): RationalCrossings {
 	const H = continuousPhasePoly(n, d);
 	const gainW = vanishes(G, scale) ? [] : realRootsIn(G, 0, Infinity).filter((w) => w > 0);
 	const phaseW = vanishes(H, scale) ? [] : realRootsIn(H, 0, Infinity).filter((w) => w > 0);
-	// far beyond every root the phase only creeps towards its asymptote; a "crossing" out there
-	// is that asymptote (−180°, relative degree 2) touched by rounding
-	const beyond = 1e4 * ev.w0 * Math.max(rootBound(n), rootBound(d));
 	const w0 = ev.w0;
 	const gain = confirm(
 		ev,
@@ -210,12 +207,18 @@ export function continuousCrossings(ev: ContinuousEval): RationalCrossings {
 		gainResidual,
 		false
 	);
-	const phase = confirm(
+	let phase = confirm(
 		ev,
 		phaseW.map((w) => w0 * Math.sqrt(w)),
 		phaseResidual,
 		true
-	).filter((c) => beyond === 0 || c.f <= beyond);
+	);
+	if (phase.length) {
+		// far beyond every root the phase only creeps towards its asymptote; a "crossing" out
+		// there is that asymptote (−180°, relative degree 2) touched by rounding
+		const beyond = 1e4 * w0 * Math.max(rootBound(n), rootBound(d));
+		phase = phase.filter((c) => beyond === 0 || c.f <= beyond);
+	}
 	const l0 = ev.atZero();
 	if (Number.isFinite(l0) && l0 < 0) phase.unshift({ f: 0, re: l0, im: 0 });
 	return { gain, phase };
