@@ -101,14 +101,17 @@ export function aberthStep(
 		const di = zi - im[j];
 		const d = dr * dr + di * di;
 		if (d === 0) continue;
-		sr += dr / d;
-		si -= di / d;
+		// one division per term, not two: divisions are this loop's cost
+		const inv = 1 / d;
+		sr += dr * inv;
+		si -= di * inv;
 	}
 	const br = 1 - (rr * sr - ri * si);
 	const bi = -(rr * si + ri * sr);
 	const bd = br * br + bi * bi;
-	const wr = bd === 0 ? rr : (rr * br + ri * bi) / bd;
-	const wi = bd === 0 ? ri : (ri * br - rr * bi) / bd;
+	const ib = 1 / bd;
+	const wr = bd === 0 ? rr : (rr * br + ri * bi) * ib;
+	const wi = bd === 0 ? ri : (ri * br - rr * bi) * ib;
 	if (!Number.isFinite(wr) || !Number.isFinite(wi)) return NaN;
 	re[k] = zr - wr;
 	im[k] = zi - wi;
@@ -233,8 +236,9 @@ export function certifiedAberth(p: readonly number[], re: Float64Array, im: Floa
 				im[k] = zi + 1e-3 * (az + 1);
 				continue;
 			}
-			const rr = (pr * dr + pi * di) / dd;
-			const ri = (pi * dr - pr * di) / dd;
+			const id = 1 / dd;
+			const rr = (pr * dr + pi * di) * id;
+			const ri = (pi * dr - pr * di) * id;
 			if (!Number.isFinite(aberthStep(re, im, n, k, rr, ri))) return false;
 		}
 	}

@@ -17,6 +17,7 @@ import { polyRoots, type Roots } from './roots';
 import { reflectedRoots } from './reflect';
 import { loneRoot, segmentSignChanges, signChanges } from './descartes';
 import { hypot } from './hypot';
+import { sortSmall } from './small-sort';
 
 /** A point of the frequency axis: f is ω in rad/s (continuous) or θ = ωT in rad (sampled). */
 export interface Crossing {
@@ -176,7 +177,7 @@ export function vanishesAtMinusOne(numW: Poly): boolean {
 
 /** Sorted, with points closer than 1e-9 relative merged. */
 export function dedupe(list: Crossing[]): Crossing[] {
-	list.sort((a, b) => a.f - b.f);
+	sortSmall(list, (a, b) => a.f - b.f);
 	const out: Crossing[] = [];
 	for (const c of list) {
 		const last = out[out.length - 1];

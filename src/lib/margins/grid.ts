@@ -3,6 +3,7 @@
  * a lightly damped root makes the response change within a fraction of its frequency.
  */
 import { hypot } from './hypot';
+import { sortSmall } from './small-sort';
 
 export function logGrid(lo: number, hi: number, perDecade: number): number[] {
 	if (!(hi > lo) || !(lo > 0)) return [lo];
@@ -42,8 +43,7 @@ export function withFeatures(
 	}
 	for (const f of extra) if (f >= lo && f <= hi) add.push(f);
 	if (add.length === 0) return grid;
-	// a typed array sorts numerically in native code, several times faster than a comparator
-	const sorted = Float64Array.from(add).sort();
+	const sorted = sortSmall(add, (a, b) => a - b);
 	const out: number[] = [];
 	let j = 0;
 	for (const g of grid) {
