@@ -10,6 +10,8 @@ import type { Factor } from './blocks';
 import { polyRoots, wRoots, zRoots, type Roots } from './roots';
 import type { CaseLoop, MeasuredData } from './loop';
 import { hypot } from './hypot';
+import { lowOrder, trim, type Poly } from './polynomial';
+import { shiftTo } from './shifted';
 
 const LN10_20 = Math.LN10 / 20;
 const RAD = Math.PI / 180;
@@ -31,12 +33,40 @@ export function loopRoots(loop: CaseLoop): { zeros: Roots; poles: Roots } {
 // sampled factors with exact coefficients in w = z − 1 give their roots from those
 function zerosOf(f: Factor, sampled: boolean): Roots {
 	return (
-		f.zeros ?? (f.numW ? wRoots(f.numW, true) : sampled ? zRoots(f.num, true) : polyRoots(f.num))
+		f.zeros ??
+		(f.numW ? shiftedRoots(f.num, f.numW, true) : sampled ? zRoots(f.num, true) : polyRoots(f.num))
 	);
 }
 
 function polesOf(f: Factor, sampled: boolean): Roots {
-	return f.poles ?? (f.denW ? wRoots(f.denW) : sampled ? zRoots(f.den) : polyRoots(f.den));
+	return (
+		f.poles ??
+		(f.denW ? shiftedRoots(f.den, f.denW, false) : sampled ? zRoots(f.den) : polyRoots(f.den))
+	);
+}
+
+/**
+ * Roots of a sampled factor's polynomial from its exact w-coefficients. Roots exactly at z = 0
+ * (zero trailing z-coefficients: a computational delay) come out exact: they are taken off the
+ * z-coefficients before the shift, instead of reaching the root finder as a multiple root at
+ * w = −1, which it can only split by rounding (and which costs it a QR fallback).
+ */
+function shiftedRoots(z: Poly, w: Poly, zeros: boolean): Roots {
+	const k = lowOrder(z);
+	if (k === 0 || k >= z.length - 1) return wRoots(w, zeros);
+	// rounding is judged against the whole factor's coefficients, as without the split
+	let size = 0;
+	for (const c of w) size += Math.abs(c);
+	const rest = wRoots(trim(shiftTo(z.slice(k), 1)), zeros, size);
+	const n = rest.re.length;
+	const re = new Float64Array(n + k);
+	const im = new Float64Array(n + k);
+	const offRe = new Float64Array(n + k).fill(1);
+	re.set(rest.re);
+	im.set(rest.im);
+	if (rest.offRe) offRe.set(rest.offRe);
+	else for (let i = 0; i < n; i++) offRe[i] = 1 - rest.re[i];
+	return { re, im, offRe, atOne: rest.atOne };
 }
 
 /** The factors' roots in one list (1 − r alongside, for sampled loops). */

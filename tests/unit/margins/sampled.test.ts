@@ -4,7 +4,9 @@
  */
 import { describe, expect, it } from 'vitest';
 import { computeMargins, sampleResponse } from '../../../src/lib/margins/index';
-import { caseOf, model, near, nearRel, poly, TWO_PI } from './helpers';
+import { buildCases } from '../../../src/lib/margins/loop';
+import { loopRoots } from '../../../src/lib/margins/response';
+import { caseOf, conv, model, near, nearRel, poly, TWO_PI } from './helpers';
 
 type C = [number, number];
 const cmul = (a: C, b: C): C => [a[0] * b[0] - a[1] * b[1], a[0] * b[1] + a[1] * b[0]];
@@ -159,5 +161,27 @@ describe('z-domain state space', () => {
 		);
 		expect(r.worstCase.from.upperGainMarginDb).toBe('b');
 		expect(r.worstCase.delayMarginSamples).toBe(r.cases[1].delayMarginSamples);
+	});
+
+	it('poles exactly at z = 0 (a computational delay written into the coefficients) stay exact', () => {
+		// 0.1(z + 0.5) / (z²(z − 0.9)(z − 0.5)): the same loop as coefficients and as roots
+		const den = conv(conv([1, 0, 0], [1, -0.9]), [1, -0.5]);
+		const written = { sampleTimeSeconds: 0.01, blocks: [poly([0.1, 0.05], den)] };
+		const [built] = buildCases(model(written));
+		const { poles } = loopRoots(built);
+		const atOrigin = Array.from(poles.re).filter((x, i) => x === 0 && poles.im[i] === 0);
+		expect(atOrigin.length).toBe(2);
+		const a = caseOf(written);
+		const b = caseOf({
+			sampleTimeSeconds: 0.01,
+			blocks: [{ type: 'factored', zeros: [-0.5], poles: [0, 0, 0.9, 0.5], gain: 0.1 }]
+		});
+		expect(a.stable).toBe(b.stable);
+		expect(a.phaseCrossovers.length).toBe(b.phaseCrossovers.length);
+		a.phaseCrossovers.forEach((p, i) => {
+			nearRel(p.hz, b.phaseCrossovers[i].hz, 1e-12);
+			near(p.gainMarginDb, b.phaseCrossovers[i].gainMarginDb, 1e-10);
+		});
+		nearRel(a.modulusMargin, b.modulusMargin!, 1e-12);
 	});
 });
