@@ -164,4 +164,35 @@ describe('Aberth–Ehrlich from Newton-polygon starts (certifiedAberth)', () => 
 			}
 		expectRoots(r.re, r.im, want, 1e-12);
 	});
+
+	// a closed loop's poles: three close real ones among well separated roots
+	const closeReal: Root[] = [
+		[-26.2, 0],
+		[-9.93, 0],
+		[-2.01, 0],
+		...pair(-0.594, 1.2),
+		[-0.31, 0],
+		[-0.27, 0],
+		[-0.21, 0]
+	];
+
+	it('each inclusion disc holds its root: |z_k − r_k| ≤ radius_k', () => {
+		const want = closeReal;
+		const p = polyOf(want);
+		const n = p.length - 1;
+		const [re, im, radius] = [new Float64Array(n), new Float64Array(n), new Float64Array(n)];
+		expect(certifiedAberth(p, re, im, radius)).toBe(true);
+		for (let k = 0; k < n; k++) {
+			const d = Math.min(...want.map(([wr, wi]) => Math.hypot(re[k] - wr, im[k] - wi)));
+			// the exact roots here are the rounded coefficients' roots only to ~1e-15 relative
+			expect(d).toBeLessThanOrEqual(radius[k] + 1e-14 * Math.hypot(re[k], im[k]));
+		}
+	});
+
+	it('close real roots come back exactly real (their discs prove them real), not as stray pairs', () => {
+		const want = closeReal;
+		const r = polyRoots(polyOf(want));
+		expect(Array.from(r.im).filter((y) => y === 0).length).toBe(6);
+		expectRoots(r.re, r.im, want, 1e-12);
+	});
 });
