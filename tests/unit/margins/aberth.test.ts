@@ -195,4 +195,40 @@ describe('Aberth–Ehrlich from Newton-polygon starts (certifiedAberth)', () => 
 		expect(Array.from(r.im).filter((y) => y === 0).length).toBe(6);
 		expectRoots(r.re, r.im, want, 1e-12);
 	});
+
+	it('500 seeded root sets (degrees 3–20, five decades, real and paired): every root found', () => {
+		let seed = 20261202;
+		const rnd = () => (seed = (seed * 16807) % 2147483647) / 2147483647;
+		for (let t = 0; t < 500; t++) {
+			const n = 3 + Math.floor(rnd() * 18);
+			const want: Root[] = [];
+			while (want.length < n) {
+				const r = 10 ** (rnd() * 5 - 2.5) * (rnd() < 0.5 ? -1 : 1);
+				if (want.length + 1 < n && rnd() < 0.5) want.push(...pair(r, Math.abs(r) * (0.05 + rnd())));
+				else want.push([r, 0]);
+			}
+			const p = polyOf(want);
+			const r = polyRoots(p);
+			expect(r.re.length).toBe(n);
+			for (let k = 0; k < n; k++) {
+				expect(residual(p, r.re[k], r.im[k])).toBeLessThan(1e-12);
+				// conjugate-closed exactly, as the engine's consumers assume
+				if (r.im[k] !== 0)
+					expect(
+						Array.from(r.re).some((x, j) => j !== k && x === r.re[k] && r.im[j] === -r.im[k])
+					).toBe(true);
+			}
+			// well separated sets (every gap above 5 % of the modulus) are found to 1e-8
+			const gap = Math.min(
+				...want.map(([a, b], i) =>
+					Math.min(
+						...want
+							.filter((_, j) => j !== i)
+							.map(([c, d]) => Math.hypot(a - c, b - d) / Math.hypot(a, b))
+					)
+				)
+			);
+			if (gap > 0.05) expectRoots(r.re, r.im, want, 1e-8);
+		}
+	});
 });
