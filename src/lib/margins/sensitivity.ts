@@ -5,6 +5,7 @@
  * damped closed-loop poles).
  */
 import { parabolicMin } from './brent';
+import { sortSmall } from './small-sort';
 
 export interface PointEval {
 	at(f: number): void;
@@ -171,6 +172,6 @@ function extrema(values: Float64Array, sign: number, count: number): number[] {
 		const right = i === n - 1 ? Infinity : sign * values[i + 1];
 		if (v <= left && v <= right && Number.isFinite(v)) idx.push(i);
 	}
-	idx.sort((a, b) => sign * values[a] - sign * values[b]);
+	sortSmall(idx, (a, b) => sign * values[a] - sign * values[b]);
 	return idx.slice(0, count);
 }
