@@ -187,10 +187,11 @@ function newtonPolygonStarts(p: readonly number[], re: Float64Array, im: Float64
  * All roots of p (ascending, degree n ≥ 1, p[0] ≠ 0 and p[n] ≠ 0) by Aberth–Ehrlich from
  * Newton-polygon starts, into re/im[0..n). Each root stops once its residual is at the rounding
  * level of Horner's rule; true only when every root did within FAST_SWEEPS sweeps and the
- * Weierstrass inclusion discs certify them: the disc of radius n·|p(z_k)/(p_n Π_(j≠k)(z_k − z_j))|
- * around z_k is small against |z_k| (an approximation that duplicates another's root, leaving a
- * root unfound, gets a disc as wide as the gap to the missing root). False: use another method.
- * `radius` receives the discs' radii.
+ * Weierstrass inclusion discs certify them: the disc of radius n·|p(z_k)|/|p_n Π_(j≠k)(z_k − z_j)|
+ * around z_k, |p(z_k)| raised by the bound on Horner's rounding, is small against |z_k| (an
+ * approximation that duplicates another's root, leaving a root unfound, gets a disc as wide as the
+ * gap to the missing root). All roots lie in the union of the discs, and a connected group of m
+ * discs holds exactly m. False: use another method. `radius` receives the discs' radii.
  */
 export function certifiedAberth(
 	p: readonly number[],
