@@ -187,25 +187,17 @@ function newtonPolygonStarts(p: readonly number[], re: Float64Array, im: Float64
  * All roots of p (ascending, degree n ≥ 1, p[0] ≠ 0 and p[n] ≠ 0) by Aberth–Ehrlich from
  * Newton-polygon starts, into re/im[0..n). Each root stops once its residual is at the rounding
  * level of Horner's rule; true only when every root did within FAST_SWEEPS sweeps and the
- * Weierstrass inclusion discs certify them: the disc of radius n·|p(z_k)|/|p_n Π_(j≠k)(z_k − z_j)|
- * around z_k, |p(z_k)| raised by the bound on Horner's rounding, is small against |z_k| (an
- * approximation that duplicates another's root, leaving a root unfound, gets a disc as wide as the
- * gap to the missing root). All roots lie in the union of the discs, and a connected group of m
- * discs holds exactly m. False: use another method. `radius` receives the discs' radii.
+ * Weierstrass inclusion discs certify them: the disc of radius n·|p(z_k)/(p_n Π_(j≠k)(z_k − z_j))|
+ * around z_k is small against |z_k| (an approximation that duplicates another's root, leaving a
+ * root unfound, gets a disc as wide as the gap to the missing root). False: use another method.
  */
-export function certifiedAberth(
-	p: readonly number[],
-	re: Float64Array,
-	im: Float64Array,
-	radius?: Float64Array
-): boolean {
+export function certifiedAberth(p: readonly number[], re: Float64Array, im: Float64Array): boolean {
 	const n = p.length - 1;
 	newtonPolygonStarts(p, re, im);
 	const done = new Uint8Array(n);
 	// p at each root where it stopped, for the certificate
 	const valRe = new Float64Array(n);
 	const valIm = new Float64Array(n);
-	const valSize = new Float64Array(n);
 	const tol = 4 * (n + 1) * EPS;
 	let left = n;
 	for (let sweep = 0; sweep < FAST_SWEEPS && left > 0; sweep++) {
@@ -234,7 +226,6 @@ export function certifiedAberth(
 				done[k] = 1;
 				valRe[k] = pr;
 				valIm[k] = pi;
-				valSize[k] = size;
 				left--;
 				continue;
 			}
@@ -252,21 +243,25 @@ export function certifiedAberth(
 		}
 	}
 	if (left > 0) return false;
-	const lead = Math.abs(p[n]);
+	const lead = p[n];
 	for (let k = 0; k < n; k++) {
 		const zr = re[k];
 		const zi = im[k];
-		// n·|W| with W = p(z_k) / (p_n Π (z_k − z_j)), |p(z_k)| raised by the bound on Horner's
-		// rounding; the product divided factor by factor (no product to overflow)
-		let r = (n * (Math.sqrt(valRe[k] * valRe[k] + valIm[k] * valIm[k]) + tol * valSize[k])) / lead;
+		// W = p(z_k) / (p_n Π (z_k − z_j)), divided factor by factor (no product to overflow)
+		let wr = valRe[k] / lead;
+		let wi = valIm[k] / lead;
 		for (let j = 0; j < n; j++) {
 			if (j === k) continue;
 			const ar = zr - re[j];
 			const ai = zi - im[j];
-			r /= Math.sqrt(ar * ar + ai * ai);
+			const d = ar * ar + ai * ai;
+			if (d === 0) return false;
+			const t = (wr * ar + wi * ai) / d;
+			wi = (wi * ar - wr * ai) / d;
+			wr = t;
 		}
-		if (!(r <= CERTIFIED * Math.sqrt(zr * zr + zi * zi))) return false;
-		if (radius) radius[k] = r;
+		const radius = n * Math.sqrt(wr * wr + wi * wi);
+		if (!(radius <= CERTIFIED * Math.sqrt(zr * zr + zi * zi))) return false;
 	}
 	return true;
 }

@@ -211,10 +211,7 @@ const ABERTH_MAX = 20;
 /** The roots of q (degree n > 2, q[0] ≠ 0) into re/im[0..n). */
 function companionRoots(q: Poly, re: Float64Array, im: Float64Array): void {
 	const n = q.length - 1;
-	if (n <= ABERTH_MAX) {
-		const radius = new Float64Array(n);
-		if (certifiedAberth(q, re, im, radius) && realPairs(re, im, n, radius)) return;
-	}
+	if (n <= ABERTH_MAX && certifiedAberth(q, re, im) && realPairs(re, im, n)) return;
 	if (hqr(companion(q, n), n, re, im) && allFinite(re) && allFinite(im)) return;
 	try {
 		// hqr overwrote the matrix: rebuild it for the second opinion
@@ -312,21 +309,13 @@ function polish(q: Poly, re: Float64Array, im: Float64Array, n: number): void {
 }
 
 /**
- * Aberth's roots of a real polynomial, made real or exactly conjugate as QR's are, using the
- * inclusion discs certifiedAberth drew (radius). A root becomes real when it is within rounding
- * of the real axis, or when its disc reaches the axis and neither the disc nor its mirror image
- * meets another's: the disc then holds exactly one root, and that root's conjugate, which lies in
- * the mirror image and so in no other disc, can only be the root itself. Every other root must
- * have a conjugate partner within rounding or within their two discs (the pair is averaged).
- * False when one has none: the roots are then left to QR, rather than two close real roots (a
- * nearly tangent crossing) being merged into a pair.
+ * Aberth's roots of a real polynomial, made real or exactly conjugate as QR's are: a root within
+ * rounding of the real axis becomes real; every other one must have a conjugate partner within
+ * rounding (the pair is averaged). False when one has none: the roots are then left to QR, rather
+ * than two close real roots (a nearly tangent crossing) being merged into a pair.
  */
-function realPairs(re: Float64Array, im: Float64Array, n: number, radius: Float64Array): boolean {
-	for (let i = 0; i < n; i++) {
-		const size = hypot(re[i], im[i]);
-		if (Math.abs(im[i]) <= 1e-12 * size) im[i] = 0;
-		else if (Math.abs(im[i]) <= radius[i] && isolated(re, im, n, radius, i)) im[i] = 0;
-	}
+function realPairs(re: Float64Array, im: Float64Array, n: number): boolean {
+	for (let i = 0; i < n; i++) if (Math.abs(im[i]) <= 1e-12 * hypot(re[i], im[i])) im[i] = 0;
 	const taken = new Uint8Array(n);
 	for (let i = 0; i < n; i++) {
 		if (taken[i] || im[i] === 0) continue;
@@ -337,31 +326,13 @@ function realPairs(re: Float64Array, im: Float64Array, n: number, radius: Float6
 			const d = hypot(re[j] - re[i], im[j] + im[i]);
 			if (d < bestD) [best, bestD] = [j, d];
 		}
-		if (best < 0) return false;
-		if (bestD > Math.max(1e-10 * hypot(re[i], im[i]), radius[i] + radius[best])) return false;
+		if (best < 0 || bestD > 1e-10 * hypot(re[i], im[i])) return false;
 		taken[i] = taken[best] = 1;
 		const a = 0.5 * (re[i] + re[best]);
 		const b = 0.5 * (Math.abs(im[i]) + Math.abs(im[best]));
 		re[i] = re[best] = a;
 		im[i] = im[i] > 0 ? b : -b;
 		im[best] = -im[i];
-	}
-	return true;
-}
-
-/** Neither disc i nor its mirror image meets another root's disc. */
-function isolated(
-	re: Float64Array,
-	im: Float64Array,
-	n: number,
-	radius: Float64Array,
-	i: number
-): boolean {
-	for (let j = 0; j < n; j++) {
-		if (j === i) continue;
-		const gap = radius[i] + radius[j];
-		if (hypot(re[j] - re[i], im[j] - im[i]) <= gap) return false;
-		if (hypot(re[j] - re[i], im[j] + im[i]) <= gap) return false;
 	}
 	return true;
 }
