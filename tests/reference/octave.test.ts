@@ -70,7 +70,6 @@ const KNOWN: Record<string, Reason> = {
 	'20205:pm': 'octave-miss',
 	'20208:pm': 'octave-miss',
 	'20209:pm': 'octave-miss',
-	'20224:pm': 'octave-miss',
 	'20226:pm': 'octave-miss',
 	'20227:pm': 'octave-miss',
 	'20232:pm': 'octave-miss',
@@ -89,10 +88,17 @@ const KNOWN: Record<string, Reason> = {
  *   crossover at all (octave-miss).
  * - 20202:pm (z, order 8): gain crossovers at 4.0238 and 109.09 rad/s (|L| − 1 below 3e-15 at
  *   both); one install finds them, another none (octave-miss).
+ * - 20020:pm (zoh, order 7): gain crossover at 0.06317014 rad/s (PM −59.4996°). One install agrees;
+ *   another answers at 0.06317032 rad/s, where |L| − 1 = −1.1e-6 (octave-inaccurate-root).
+ * - 20224:pm (zoh, order 5): gain crossover at 3.1737938 rad/s (PM 157.1857°). One install finds
+ *   none (octave-miss); another answers at 3.1737899 rad/s, where |L| − 1 = 5.4e-9 and the
+ *   engine's crossover is ten times closer (octave-inaccurate-root).
  */
 const EITHER: Record<string, Reason[]> = {
 	'20059:pm': ['octave-miss', 'octave-inaccurate-root'],
-	'20202:pm': ['octave-miss']
+	'20202:pm': ['octave-miss'],
+	'20020:pm': ['octave-inaccurate-root'],
+	'20224:pm': ['octave-miss', 'octave-inaccurate-root']
 };
 
 const loops = octaveLoops();

@@ -71,18 +71,6 @@ export function brentRoot(
 	return b;
 }
 
-/** Minimum of f on [a, b] (golden section with parabolic steps). Returns [x, f(x)]. */
-export function brentMin(
-	f: (x: number) => number,
-	a: number,
-	b: number,
-	tol = 1e-10
-): [number, number] {
-	const x = a + 0.3819660112501051 * (b - a);
-	const fx = f(x);
-	return fmin(f, a, b, tol, x, fx, x, fx, x, fx, 0);
-}
-
 /**
  * Brent's fmin from a given state: x the best point so far, w the second best, v the previous w;
  * e the step before last (0: start with a golden-section step).

@@ -8,7 +8,7 @@
  * series in cos θ, for the colleague matrix of high-order loops; low orders use the exactly
  * shifted polynomials of shifted.ts instead).
  */
-import { add, mul, scale, shiftUp, sub, type Poly } from './polynomial';
+import { trim, type Poly } from './polynomial';
 
 /** [A, B] with p(jω) = A(ω²) + jω·B(ω²). */
 export function evenOdd(p: Poly): [Poly, Poly] {
@@ -22,16 +22,40 @@ export function evenOdd(p: Poly): [Poly, Poly] {
 	return [a, b];
 }
 
-const squaredMagnitude = ([a, b]: [Poly, Poly]): Poly => add(mul(a, a), shiftUp(mul(b, b), 1));
+/**
+ * Σ a_i·b_(m−i) over i ascending: coefficient m of a·b, summed in the order mul() sums it (so the
+ * fused forms below give the same bits as the products written out, without their arrays).
+ */
+function productAt(a: Poly, b: Poly, m: number): number {
+	let s = 0;
+	const first = Math.max(0, m - b.length + 1);
+	const last = Math.min(m, a.length - 1);
+	for (let i = first; i <= last; i++) s += a[i] * b[m - i];
+	return s;
+}
 
+/** g²(A_N² + w·B_N²) − (A_D² + w·B_D²), coefficient by coefficient. */
 export function continuousGainPoly(num: Poly, den: Poly, g: number): Poly {
-	return sub(scale(squaredMagnitude(evenOdd(num)), g * g), squaredMagnitude(evenOdd(den)));
+	const [an, bn] = evenOdd(num);
+	const [ad, bd] = evenOdd(den);
+	const size = Math.max(num.length, den.length);
+	const out = new Array<number>(size).fill(0);
+	const g2 = g * g;
+	for (let m = 0; m < size; m++) {
+		const n2 = productAt(an, an, m) + (m > 0 ? productAt(bn, bn, m - 1) : 0);
+		const d2 = productAt(ad, ad, m) + (m > 0 ? productAt(bd, bd, m - 1) : 0);
+		out[m] = g2 * n2 - d2;
+	}
+	return trim(out);
 }
 
 export function continuousPhasePoly(num: Poly, den: Poly): Poly {
 	const [an, bn] = evenOdd(num);
 	const [ad, bd] = evenOdd(den);
-	return sub(mul(bn, ad), mul(an, bd));
+	const size = Math.max(num.length, den.length);
+	const out = new Array<number>(size).fill(0);
+	for (let m = 0; m < size; m++) out[m] = productAt(bn, ad, m) - productAt(an, bd, m);
+	return trim(out);
 }
 
 /** r_m = Σ p_i p_(i+m): |p(e^{jθ})|² = r_0 + 2 Σ r_m cos mθ. */

@@ -15,8 +15,9 @@ import type { ContinuousEval, LoopEval } from './rational-eval';
 import { chebyshevRealRoots } from './chebyshev';
 import { polyRoots, type Roots } from './roots';
 import { reflectedRoots } from './reflect';
-import { loneRoot, noPositiveRoots, noRootsOnSegment } from './descartes';
+import { loneRoot, segmentSignChanges, signChanges } from './descartes';
 import { hypot } from './hypot';
+import { sortSmall } from './small-sort';
 
 /** A point of the frequency axis: f is ω in rad/s (continuous) or θ = ωT in rad (sampled). */
 export interface Crossing {
@@ -30,27 +31,33 @@ const ACCEPT = 1e-9;
 const SEGMENT = 2.5;
 const NEAR_REAL = 1e-2;
 
-/** No root near the real axis in [lo, hi] (Descartes–Obreshkoff): no eigenvalues needed. */
-function certifiedEmpty(p: Poly, lo: number, hi: number): boolean {
-	return hi === Infinity
-		? lo === 0 && noPositiveRoots(p)
-		: lo > -1e-9 && hi < SEGMENT && noRootsOnSegment(p, SEGMENT);
+/**
+ * Descartes–Obreshkoff's count for the sector (hi = Infinity, from 0) or the lens over
+ * [0, SEGMENT] that holds every root near the real axis in [lo, hi]; −1 when neither covers the
+ * search or a sign is not sure. 0: no root there, no eigenvalues needed.
+ */
+function regionChanges(p: Poly, lo: number, hi: number): number {
+	if (hi === Infinity) return lo === 0 ? signChanges(p) : -1;
+	return lo > -1e-9 && hi < SEGMENT ? segmentSignChanges(p, SEGMENT) : -1;
 }
 
-const needsRoots = (p: Poly, lo: number, hi: number): boolean =>
-	p.length >= 2 && maxAbs(p) !== 0 && !certifiedEmpty(p, lo, hi);
+/** changes: regionChanges of p over the search. */
+const needsRoots = (p: Poly, changes: number): boolean =>
+	p.length >= 2 && maxAbs(p) !== 0 && changes !== 0;
 
 /**
  * The roots a real-root search in [lo, hi] must look at; null when there are none. When the
  * coefficients certify a single root in the searched sector or lens, that real root alone, found
- * by bracketing: no eigenvalues needed either.
+ * by bracketing: no eigenvalues needed either. `changes`: regionChanges(p, lo, hi).
  */
-function searchedRoots(p: Poly, lo: number, hi: number): Roots | null {
-	if (!needsRoots(p, lo, hi)) return null;
-	const x =
-		lo >= 0 && (hi === Infinity || hi < SEGMENT)
-			? loneRoot(p, hi === Infinity ? hi : SEGMENT)
-			: null;
+function searchedRoots(
+	p: Poly,
+	lo: number,
+	hi: number,
+	changes = regionChanges(p, lo, hi)
+): Roots | null {
+	if (!needsRoots(p, changes)) return null;
+	const x = lo >= 0 ? loneRoot(p, hi === Infinity ? hi : SEGMENT, changes) : null;
 	return x === null ? polyRoots(p) : { re: Float64Array.of(x), im: Float64Array.of(0) };
 }
 
@@ -170,7 +177,7 @@ export function vanishesAtMinusOne(numW: Poly): boolean {
 
 /** Sorted, with points closer than 1e-9 relative merged. */
 export function dedupe(list: Crossing[]): Crossing[] {
-	list.sort((a, b) => a.f - b.f);
+	sortSmall(list, (a, b) => a.f - b.f);
 	const out: Crossing[] = [];
 	for (const c of list) {
 		const last = out[out.length - 1];
@@ -194,14 +201,25 @@ export function continuousCrossings(ev: ContinuousEval): RationalCrossings {
 	const H = continuousPhasePoly(n, d);
 	const gainW = vanishes(G, scale) ? [] : realRootsIn(G, 0, Infinity).filter((w) => w > 0);
 	const phaseW = vanishes(H, scale) ? [] : realRootsIn(H, 0, Infinity).filter((w) => w > 0);
-	const toOmega = (w: number) => ev.w0 * Math.sqrt(w);
-	// far beyond every root the phase only creeps towards its asymptote; a "crossing" out there
-	// is that asymptote (−180°, relative degree 2) touched by rounding
-	const beyond = 1e4 * ev.w0 * Math.max(rootBound(n), rootBound(d));
-	const gain = confirm(ev, gainW.map(toOmega), gainResidual, false);
-	const phase = confirm(ev, phaseW.map(toOmega), phaseResidual, true).filter(
-		(c) => beyond === 0 || c.f <= beyond
+	const w0 = ev.w0;
+	const gain = confirm(
+		ev,
+		gainW.map((w) => w0 * Math.sqrt(w)),
+		gainResidual,
+		false
 	);
+	let phase = confirm(
+		ev,
+		phaseW.map((w) => w0 * Math.sqrt(w)),
+		phaseResidual,
+		true
+	);
+	if (phase.length) {
+		// far beyond every root the phase only creeps towards its asymptote; a "crossing" out
+		// there is that asymptote (−180°, relative degree 2) touched by rounding
+		const beyond = 1e4 * w0 * Math.max(rootBound(n), rootBound(d));
+		phase = phase.filter((c) => beyond === 0 || c.f <= beyond);
+	}
 	const l0 = ev.atZero();
 	if (Number.isFinite(l0) && l0 < 0) phase.unshift({ f: 0, re: l0, im: 0 });
 	return { gain, phase };
@@ -226,8 +244,8 @@ const sumAbs = (p: Poly) => p.reduce((s, x) => s + Math.abs(x), 0);
 function circleCandidates(numW: Poly, denW: Poly, g: number): { gain: number[]; phase: number[] } {
 	const nV = shiftTo(numW, -2);
 	const dV = shiftTo(denW, -2);
-	const scaleOf = (n: Poly, d: Poly) => (g * sumAbs(n)) ** 2 + sumAbs(d) ** 2;
-	const [scaleW, scaleV] = [scaleOf(numW, denW), scaleOf(nV, dV)];
+	const scaleW = (g * sumAbs(numW)) ** 2 + sumAbs(denW) ** 2;
+	const scaleV = (g * sumAbs(nV)) ** 2 + sumAbs(dV) ** 2;
 	// the two halves meet at u = 2; the end points themselves are judged separately
 	const gain = bothHalves(
 		gainPolyU(numW, denW, g, 1),
@@ -255,10 +273,12 @@ function bothHalves(
 	const rootsW = vanishes(plus, scaleW) ? null : searchedRoots(plus, loW, HI);
 	// reflection needs all of P₊'s roots (not a lone one found by bracketing)
 	const all = rootsW && rootsW.re.length === plus.length - 1 ? rootsW : null;
+	const changesV = regionChanges(minus, loV, HI);
 	const rootsV =
-		vanishes(minus, scaleV) || !needsRoots(minus, loV, HI)
+		vanishes(minus, scaleV) || !needsRoots(minus, changesV)
 			? null
-			: ((all && reflectedRoots(minus, all, plus.length - 1)) ?? searchedRoots(minus, loV, HI));
+			: ((all && reflectedRoots(minus, all, plus.length - 1)) ??
+				searchedRoots(minus, loV, HI, changesV));
 	return [
 		...nearRealIn(rootsW, loW, HI).map((u) => thetaFromU(u, 1)),
 		...nearRealIn(rootsV, loV, HI).map((u) => thetaFromU(u, -1))

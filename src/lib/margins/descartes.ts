@@ -16,7 +16,7 @@ import { evalReal, rootBound, type Poly } from './polynomial';
 const SURE = 1e-10;
 
 /** Sign changes of p's coefficients (zeros skipped); −1 when a sign is not sure. */
-function signChanges(p: Poly): number {
+export function signChanges(p: Poly): number {
 	let max = 0;
 	for (const c of p) max = Math.max(max, Math.abs(c));
 	if (max === 0) return -1;
@@ -36,7 +36,7 @@ function signChanges(p: Poly): number {
  * Sign changes of the coefficients of (1 + t)ⁿ·p(B·t/(1 + t)), each sign sure by a clear margin
  * over the rounding of the sum that formed it; −1 otherwise.
  */
-function segmentSignChanges(p: Poly, B: number): number {
+export function segmentSignChanges(p: Poly, B: number): number {
 	const n = p.length - 1;
 	if (n < 1) return -1;
 	// q_j = Σ_{i ≤ j} p_i B^i C(n − i, j − i); the same sum over |terms| bounds its rounding
@@ -81,11 +81,15 @@ export const noRootsOnSegment = (p: Poly, B: number): boolean => segmentSignChan
  * The single root of p (ascending, p(0) ≠ 0) in the sector (B = Infinity) or in the lens over
  * [0, B], when its coefficients certify that there is exactly one: it is real and simple, so p
  * changes sign once between 0 and B (or the bound on all roots), and bracketing finds it to full
- * precision. Null when not certified.
+ * precision. Null when not certified. `changes`: the count for B, when the caller has it.
  */
-export function loneRoot(p: Poly, B: number): number | null {
+export function loneRoot(
+	p: Poly,
+	B: number,
+	changes = B === Infinity ? signChanges(p) : segmentSignChanges(p, B)
+): number | null {
 	if (p.length < 2 || p[0] === 0) return null;
-	if ((B === Infinity ? signChanges(p) : segmentSignChanges(p, B)) !== 1) return null;
+	if (changes !== 1) return null;
 	const hi = B === Infinity ? rootBound(p) : B;
 	const f0 = p[0];
 	const f1 = evalReal(p, hi);

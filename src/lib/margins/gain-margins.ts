@@ -11,6 +11,7 @@
  * said "unstable" did, which leaves that edge gain inside the "stable" interval.)
  */
 import { hypot } from './hypot';
+import { sortSmall } from './small-sort';
 
 export interface GainCandidate {
 	k: number;
@@ -32,7 +33,7 @@ export function gainCandidates(
 		const mag = hypot(p.re, p.im);
 		if (mag > 0 && Number.isFinite(mag)) out.push({ k: 1 / mag, f: p.f });
 	}
-	return out.sort((a, b) => a.k - b.k);
+	return sortSmall(out, (a, b) => a.k - b.k);
 }
 
 export function gainInterval(candidates: GainCandidate[]): GainInterval {

@@ -3,6 +3,7 @@
  * a lightly damped root makes the response change within a fraction of its frequency.
  */
 import { hypot } from './hypot';
+import { sortSmall } from './small-sort';
 
 export function logGrid(lo: number, hi: number, perDecade: number): number[] {
 	if (!(hi > lo) || !(lo > 0)) return [lo];
@@ -42,18 +43,20 @@ export function withFeatures(
 	}
 	for (const f of extra) if (f >= lo && f <= hi) add.push(f);
 	if (add.length === 0) return grid;
-	add.sort((a, b) => a - b);
+	const sorted = sortSmall(add, (a, b) => a - b);
 	const out: number[] = [];
-	const push = (f: number) => {
-		if (out.length === 0 || f > out[out.length - 1] * (1 + 1e-12)) out.push(f);
-	};
 	let j = 0;
 	for (const g of grid) {
-		while (j < add.length && add[j] < g) push(add[j++]);
-		push(g);
+		while (j < sorted.length && sorted[j] < g) pushDistinct(out, sorted[j++]);
+		pushDistinct(out, g);
 	}
-	while (j < add.length) push(add[j++]);
+	while (j < sorted.length) pushDistinct(out, sorted[j++]);
 	return out;
+}
+
+/** Appends f unless it repeats the last point (a module function: no closure per call). */
+function pushDistinct(out: number[], f: number): void {
+	if (out.length === 0 || f > out[out.length - 1] * (1 + 1e-12)) out.push(f);
 }
 
 /** [lo, hi] spanning `spread` beyond the outermost positive feature frequencies. */

@@ -28,13 +28,13 @@ const PER_DECADE = 12;
 export function rationalAnalysis(loop: CaseLoop): CaseAnalysis {
 	let ev: LoopEval;
 	let cross: RationalCrossings;
-	let closed: (k: number) => ClosedLoop;
+	let cl: ClosedLoop;
 	let lInf = 0;
 	if (loop.T === null) {
 		const c = new ContinuousEval(loop.num, loop.den, loop.gain);
 		ev = c;
 		cross = continuousCrossings(c);
-		closed = (k) => continuousClosedLoop(c, k);
+		cl = continuousClosedLoop(c, 1);
 		lInf = c.atInfinity();
 	} else {
 		const { zeros, poles } = loopRoots(loop);
@@ -43,9 +43,8 @@ export function rationalAnalysis(loop: CaseLoop): CaseAnalysis {
 		const forms = loopForms(loop);
 		const w = forms.w;
 		cross = sampledCrossings(ev, forms);
-		closed = (k) => sampledClosedLoop(w.num, w.den, k * w.gain);
+		cl = sampledClosedLoop(w.num, w.den, w.gain);
 	}
-	const cl = closed(1);
 	const grid = sensitivityGrid(
 		ev,
 		cl.poles,
@@ -117,6 +116,13 @@ export function evaluate(ev: LoopEval, grid: number[]): GridValues {
 	return { re, im };
 }
 
+/** How many of the crossings lie in (a, b]. */
+function inside(list: Crossing[], a: number, b: number): number {
+	let count = 0;
+	for (const c of list) if (c.f > a && c.f <= b) count++;
+	return count;
+}
+
 /**
  * The algebra is exact, but a grid costs little: a sign change of ln|L| or of Im L (with Re L < 0)
  * between two grid points that no crossover explains is refined by Brent and added.
@@ -137,11 +143,10 @@ export function safetyNet(
 		ev.at(Math.PI / 2);
 		deep = 1e-12 * hypot(ev.re, ev.im);
 	}
-	const inside = (list: Crossing[], a: number, b: number) =>
-		list.filter((c) => c.f > a && c.f <= b).length;
 	const added: { gain: Crossing[]; phase: Crossing[] } = { gain: [], phase: [] };
 	for (let i = 0; i + 1 < n; i++) {
-		const [a, b] = [grid[i], grid[i + 1]];
+		const a = grid[i];
+		const b = grid[i + 1];
 		if (lm[i] * lm[i + 1] < 0 && inside(cross.gain, a, b) % 2 === 0) {
 			const u = brentRoot(
 				(x) => {

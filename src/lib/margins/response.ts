@@ -10,6 +10,8 @@ import type { Factor } from './blocks';
 import { polyRoots, wRoots, zRoots, type Roots } from './roots';
 import type { CaseLoop, MeasuredData } from './loop';
 import { hypot } from './hypot';
+import { lowOrder, trim, type Poly } from './polynomial';
+import { shiftTo } from './shifted';
 
 const LN10_20 = Math.LN10 / 20;
 const RAD = Math.PI / 180;
@@ -21,31 +23,71 @@ interface Interp {
 }
 
 export function loopRoots(loop: CaseLoop): { zeros: Roots; poles: Roots } {
-	const find = loop.T === null ? polyRoots : zRoots;
-	// sampled factors with exact coefficients in w = z − 1 give their roots from those
-	const zerosOf = (f: Factor) =>
-		f.zeros ??
-		(f.numW ? wRoots(f.numW, true) : loop.T === null ? polyRoots(f.num) : zRoots(f.num, true));
-	const polesOf = (f: Factor) => f.poles ?? (f.denW ? wRoots(f.denW) : find(f.den));
-	const collect = (pick: (i: number) => Roots): Roots => {
-		const parts = loop.factors.map((_, i) => pick(i));
-		const n = parts.reduce((s, r) => s + r.re.length, 0);
-		const re = new Float64Array(n);
-		const im = new Float64Array(n);
-		const offRe = new Float64Array(n);
-		let o = 0;
-		for (const r of parts) {
-			re.set(r.re, o);
-			im.set(r.im, o);
-			for (let i = 0; i < r.re.length; i++) offRe[o + i] = r.offRe ? r.offRe[i] : 1 - r.re[i];
-			o += r.re.length;
-		}
-		return { re, im, offRe, atOne: parts.reduce((s, r) => s + (r.atOne ?? 0), 0) };
-	};
+	const sampled = loop.T !== null;
 	return {
-		zeros: collect((i) => zerosOf(loop.factors[i])),
-		poles: collect((i) => polesOf(loop.factors[i]))
+		zeros: collect(loop.factors.map((f) => zerosOf(f, sampled))),
+		poles: collect(loop.factors.map((f) => polesOf(f, sampled)))
 	};
+}
+
+// sampled factors with exact coefficients in w = z − 1 give their roots from those
+function zerosOf(f: Factor, sampled: boolean): Roots {
+	return (
+		f.zeros ??
+		(f.numW ? shiftedRoots(f.num, f.numW, true) : sampled ? zRoots(f.num, true) : polyRoots(f.num))
+	);
+}
+
+function polesOf(f: Factor, sampled: boolean): Roots {
+	return (
+		f.poles ??
+		(f.denW ? shiftedRoots(f.den, f.denW, false) : sampled ? zRoots(f.den) : polyRoots(f.den))
+	);
+}
+
+/**
+ * Roots of a sampled factor's polynomial from its exact w-coefficients. Roots exactly at z = 0
+ * (zero trailing z-coefficients: a computational delay) come out exact: they are taken off the
+ * z-coefficients before the shift, instead of reaching the root finder as a multiple root at
+ * w = −1, which it can only split by rounding (and which costs it a QR fallback).
+ */
+function shiftedRoots(z: Poly, w: Poly, zeros: boolean): Roots {
+	const k = lowOrder(z);
+	if (k === 0 || k >= z.length - 1) return wRoots(w, zeros);
+	// rounding is judged against the whole factor's coefficients, as without the split
+	let size = 0;
+	for (const c of w) size += Math.abs(c);
+	const rest = wRoots(trim(shiftTo(z.slice(k), 1)), zeros, size);
+	const n = rest.re.length;
+	const re = new Float64Array(n + k);
+	const im = new Float64Array(n + k);
+	const offRe = new Float64Array(n + k).fill(1);
+	re.set(rest.re);
+	im.set(rest.im);
+	if (rest.offRe) offRe.set(rest.offRe);
+	else for (let i = 0; i < n; i++) offRe[i] = 1 - rest.re[i];
+	return { re, im, offRe, atOne: rest.atOne };
+}
+
+/** The factors' roots in one list (1 − r alongside, for sampled loops). */
+function collect(parts: Roots[]): Roots {
+	let n = 0;
+	let atOne = 0;
+	for (const r of parts) {
+		n += r.re.length;
+		atOne += r.atOne ?? 0;
+	}
+	const re = new Float64Array(n);
+	const im = new Float64Array(n);
+	const offRe = new Float64Array(n);
+	let o = 0;
+	for (const r of parts) {
+		re.set(r.re, o);
+		im.set(r.im, o);
+		for (let i = 0; i < r.re.length; i++) offRe[o + i] = r.offRe ? r.offRe[i] : 1 - r.re[i];
+		o += r.re.length;
+	}
+	return { re, im, offRe, atOne };
 }
 
 export class LoopResponse {
@@ -71,8 +113,7 @@ export class LoopResponse {
 		this.T = loop.T;
 		this.zeros = roots.zeros;
 		this.poles = roots.poles;
-		const lead = (p: number[]) => p[p.length - 1];
-		this.lead = (loop.gain * lead(loop.num)) / lead(loop.den);
+		this.lead = (loop.gain * loop.num[loop.num.length - 1]) / loop.den[loop.den.length - 1];
 		this.delay = this.sampled ? loop.delaySamples : loop.delaySeconds;
 		this.interp = loop.measured.map(toInterp);
 		this.zOff = this.zeros.offRe ?? Float64Array.from(this.zeros.re, (x) => 1 - x);

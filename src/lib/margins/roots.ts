@@ -1,11 +1,13 @@
 /**
- * Roots of real polynomials: closed forms up to degree 2, otherwise the eigenvalues of the
- * balanced companion matrix by Francis QR; when QR does not converge, numeric.eig on the same
- * matrix, and when that throws (it does on xⁿ − c), Aberth–Ehrlich. Every root is then checked
- * against the polynomial itself and Newton-polished when its residual is not at rounding level.
+ * Roots of real polynomials: closed forms up to degree 2; otherwise Aberth–Ehrlich from
+ * Newton-polygon starts when its roots certify (aberth.ts), else the eigenvalues of the balanced
+ * companion matrix by Francis QR; when QR does not converge, numeric.eig on the same matrix, and
+ * when that throws (it does on xⁿ − c), Aberth–Ehrlich from plain starts. Every root is then
+ * checked against the polynomial itself and Newton-polished when its residual is not at rounding
+ * level.
  */
 import numeric from 'numeric';
-import { aberth } from './aberth';
+import { aberth, certifiedAberth } from './aberth';
 import { hqr } from './hqr';
 import { lowOrder, trim, type Poly } from './polynomial';
 import { shiftTo } from './shifted';
@@ -198,9 +200,18 @@ function scaleFactor(c: number, r: number): number {
 	return f;
 }
 
-/** The roots of q (degree n > 2) into re/im[0..n). */
+/**
+ * Up to this degree Aberth's iteration from Newton-polygon starts is tried first: on the
+ * crossover and characteristic polynomials of the loops we see it takes about half the time of
+ * the companion matrix's QR. Beyond it (long folded delays), and whenever its roots do not
+ * certify, QR.
+ */
+const ABERTH_MAX = 20;
+
+/** The roots of q (degree n > 2, q[0] ≠ 0) into re/im[0..n). */
 function companionRoots(q: Poly, re: Float64Array, im: Float64Array): void {
 	const n = q.length - 1;
+	if (n <= ABERTH_MAX && certifiedAberth(q, re, im) && realPairs(re, im, n)) return;
 	if (hqr(companion(q, n), n, re, im) && allFinite(re) && allFinite(im)) return;
 	try {
 		// hqr overwrote the matrix: rebuild it for the second opinion
@@ -295,6 +306,35 @@ function polish(q: Poly, re: Float64Array, im: Float64Array, n: number): void {
 			im.set(better.im);
 		}
 	}
+}
+
+/**
+ * Aberth's roots of a real polynomial, made real or exactly conjugate as QR's are: a root within
+ * rounding of the real axis becomes real; every other one must have a conjugate partner within
+ * rounding (the pair is averaged). False when one has none: the roots are then left to QR, rather
+ * than two close real roots (a nearly tangent crossing) being merged into a pair.
+ */
+function realPairs(re: Float64Array, im: Float64Array, n: number): boolean {
+	for (let i = 0; i < n; i++) if (Math.abs(im[i]) <= 1e-12 * hypot(re[i], im[i])) im[i] = 0;
+	const taken = new Uint8Array(n);
+	for (let i = 0; i < n; i++) {
+		if (taken[i] || im[i] === 0) continue;
+		let best = -1;
+		let bestD = Infinity;
+		for (let j = i + 1; j < n; j++) {
+			if (taken[j] || im[j] === 0 || im[j] > 0 === im[i] > 0) continue;
+			const d = hypot(re[j] - re[i], im[j] + im[i]);
+			if (d < bestD) [best, bestD] = [j, d];
+		}
+		if (best < 0 || bestD > 1e-10 * hypot(re[i], im[i])) return false;
+		taken[i] = taken[best] = 1;
+		const a = 0.5 * (re[i] + re[best]);
+		const b = 0.5 * (Math.abs(im[i]) + Math.abs(im[best]));
+		re[i] = re[best] = a;
+		im[i] = im[i] > 0 ? b : -b;
+		im[best] = -im[i];
+	}
+	return true;
 }
 
 /** Aberth's roots of a real polynomial are conjugate only up to rounding: make pairs exact. */

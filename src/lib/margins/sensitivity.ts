@@ -4,7 +4,8 @@
  * caller's: it must already be dense where these functions have narrow features (near lightly
  * damped closed-loop poles).
  */
-import { brentMin, parabolicMin } from './brent';
+import { parabolicMin } from './brent';
+import { sortSmall } from './small-sort';
 
 export interface PointEval {
 	at(f: number): void;
@@ -33,6 +34,7 @@ const modulusOf = (re: number, im: number) => (1 + re) * (1 + re) + im * im;
  * damped closed-loop pole) needs its position far below its own width.
  */
 const REFINE_TOL = 1e-10;
+const GOLDEN = 0.3819660112501051;
 
 const halfOf = (re: number, im: number) => {
 	const m = (1 + re) * (1 + re) + im * im;
@@ -78,49 +80,9 @@ export function sensitivity(
 		if (m < bestMod) [bestMod, bestModF] = [m, e.f];
 		if (h > bestHalf) [bestHalf, bestHalfF] = [h, e.f];
 	}
-	const polish = (
-		vals: Float64Array,
-		sign: number,
-		of: (re: number, im: number) => number
-	): [number, number] => {
-		let best = Infinity;
-		let bestF = NaN;
-		const found = extrema(vals, sign, refine);
-		const limit = found.length
-			? sign * vals[found[0]] * (sign > 0 ? within * within : 1 / (within * within))
-			: 0;
-		for (const i of found) {
-			if (i !== found[0] && sign * vals[i] > limit) continue;
-			if (sign * vals[i] < best) [best, bestF] = [sign * vals[i], grid[i]];
-			const a = Math.log(grid[Math.max(0, i - 1)]);
-			const b = Math.log(grid[Math.min(n - 1, i + 1)]);
-			if (!(b > a)) continue;
-			const f = (x: number): number => {
-				ev.at(Math.exp(x));
-				const y = sign * of(ev.re, ev.im);
-				return Number.isNaN(y) ? Infinity : y;
-			};
-			// an interior grid minimum already brackets; only band ends need a blind search
-			const [u, v] =
-				i > 0 && i < n - 1
-					? parabolicMin(
-							f,
-							a,
-							sign * vals[i - 1],
-							Math.log(grid[i]),
-							sign * vals[i],
-							b,
-							sign * vals[i + 1],
-							REFINE_TOL
-						)
-					: brentMin(f, a, b, REFINE_TOL);
-			if (v < best) [best, bestF] = [v, Math.exp(u)];
-		}
-		return [sign * best, bestF];
-	};
-	const [m, mf] = polish(mod, 1, modulusOf);
+	const [m, mf] = refineExtrema(ev, grid, mod, 1, modulusOf, refine, within);
 	if (m < bestMod) [bestMod, bestModF] = [m, mf];
-	const [h, hf] = polish(half, -1, halfOf);
+	const [h, hf] = refineExtrema(ev, grid, half, -1, halfOf, refine, within);
 	if (h > bestHalf) [bestHalf, bestHalfF] = [h, hf];
 	return {
 		modulus: Math.sqrt(bestMod),
@@ -128,6 +90,76 @@ export function sensitivity(
 		half: Math.sqrt(bestHalf),
 		halfF: bestHalfF
 	};
+}
+
+/** sign·of(L) at f = e^x, NaN read as the worst value. */
+function objective(
+	ev: PointEval,
+	sign: number,
+	of: (re: number, im: number) => number,
+	x: number
+): number {
+	ev.at(Math.exp(x));
+	const y = sign * of(ev.re, ev.im);
+	return Number.isNaN(y) ? Infinity : y;
+}
+
+/**
+ * The smallest of sign·vals' best local minima, each refined in ln f; [sign·value, f].
+ * (Module functions and inline arrows only: a bundler that keeps function names wraps every
+ * named closure at each call.)
+ */
+function refineExtrema(
+	ev: PointEval,
+	grid: number[],
+	vals: Float64Array,
+	sign: number,
+	of: (re: number, im: number) => number,
+	refine: number,
+	within: number
+): [number, number] {
+	const n = grid.length;
+	let best = Infinity;
+	let bestF = NaN;
+	const found = extrema(vals, sign, refine);
+	const limit = found.length
+		? sign * vals[found[0]] * (sign > 0 ? within * within : 1 / (within * within))
+		: 0;
+	for (const i of found) {
+		if (i !== found[0] && sign * vals[i] > limit) continue;
+		if (sign * vals[i] < best) [best, bestF] = [sign * vals[i], grid[i]];
+		const a = Math.log(grid[Math.max(0, i - 1)]);
+		const b = Math.log(grid[Math.min(n - 1, i + 1)]);
+		if (!(b > a)) continue;
+		let u: number;
+		let v: number;
+		if (i > 0 && i < n - 1)
+			// an interior grid minimum already brackets
+			[u, v] = parabolicMin(
+				(x) => objective(ev, sign, of, x),
+				a,
+				sign * vals[i - 1],
+				Math.log(grid[i]),
+				sign * vals[i],
+				b,
+				sign * vals[i + 1],
+				REFINE_TOL
+			);
+		else {
+			// a band end: one probe at the golden point nearer the end. Below the end's value, it
+			// brackets a minimum inside; otherwise the function rises from the end, whose grid value
+			// stands (a blind search would only creep towards it, some forty evaluations)
+			const end = sign * vals[i];
+			const other = sign * vals[i === 0 ? 1 : n - 2];
+			const g = i === 0 ? a + GOLDEN * (b - a) : b - GOLDEN * (b - a);
+			const probe = objective(ev, sign, of, g);
+			if (!(probe < end)) continue;
+			const [fa, fb] = i === 0 ? [end, other] : [other, end];
+			[u, v] = parabolicMin((x) => objective(ev, sign, of, x), a, fa, g, probe, b, fb, REFINE_TOL);
+		}
+		if (v < best) [best, bestF] = [v, Math.exp(u)];
+	}
+	return [sign * best, bestF];
 }
 
 /** Indices of the `count` smallest local minima of sign·values (band ends included). */
@@ -140,6 +172,6 @@ function extrema(values: Float64Array, sign: number, count: number): number[] {
 		const right = i === n - 1 ? Infinity : sign * values[i + 1];
 		if (v <= left && v <= right && Number.isFinite(v)) idx.push(i);
 	}
-	idx.sort((a, b) => sign * values[a] - sign * values[b]);
+	sortSmall(idx, (a, b) => sign * values[a] - sign * values[b]);
 	return idx.slice(0, count);
 }

@@ -88,17 +88,19 @@ function squaredMagnitude(a: Poly, sums: { p: Poly[] }, size: number): number[] 
 export function gainPolyU(n: Poly, d: Poly, g: number, c: 1 | -1): Poly {
 	const M = Math.max(n.length, d.length);
 	const sums = symmetricSums(M, c);
-	const size = 2 * M + 1;
-	const N2 = squaredMagnitude(n, sums, size);
-	const D2 = squaredMagnitude(d, sums, size);
-	return trim(N2.map((x, i) => g * g * x - D2[i]));
+	// uⁱ·p_(k−i) has degree k < M: M coefficients hold |P|² exactly, with no zeros to trim off
+	const N2 = squaredMagnitude(n, sums, M);
+	const D2 = squaredMagnitude(d, sums, M);
+	for (let i = 0; i < M; i++) N2[i] = g * g * N2[i] - D2[i];
+	return trim(N2);
 }
 
 /** Im(N·conj D)/sin θ as a polynomial in u = |z − c|²; n, d already shifted to c. */
 export function phasePolyU(n: Poly, d: Poly, c: 1 | -1): Poly {
 	const M = Math.max(n.length, d.length);
 	const sums = symmetricSums(M, c);
-	const out = new Array<number>(2 * M + 1).fill(0);
+	// u^min(i,k)·q_|i−k| has degree max(i, k) − 1 < M − 1
+	const out = new Array<number>(Math.max(M - 1, 0)).fill(0);
 	for (let i = 0; i < n.length; i++)
 		for (let k = 0; k < d.length; k++) {
 			if (i === k || n[i] === 0 || d[k] === 0) continue;

@@ -8,6 +8,7 @@ import { shiftTo } from './shifted';
 import { hornerWithDerivative, type ContinuousEval } from './rational-eval';
 import { polyRoots } from './roots';
 import { hypot } from './hypot';
+import { sortSmall } from './small-sort';
 
 /** Relative margin inside which a computed pole is taken to be on the boundary. */
 const BOUNDARY = 1e-10;
@@ -76,4 +77,5 @@ function newton(p: Poly, xr: number, xi: number): [number, number] {
 	return [xr, xi];
 }
 
-const sorted = (poles: [number, number][]) => poles.sort((p, q) => p[0] - q[0] || p[1] - q[1]);
+const sorted = (poles: [number, number][]) =>
+	sortSmall(poles, (p, q) => p[0] - q[0] || p[1] - q[1]);

@@ -20,6 +20,15 @@ function pick(
 	return best;
 }
 
+/** Copies the figures `keys` of case c (when there is one) into out, naming c as their source. */
+function take(out: WorstCase, from: WorstCaseSource, c: CaseResult | null, keys: Key[]): void {
+	if (!c) return;
+	for (const k of keys) {
+		(out as unknown as Record<string, unknown>)[k] = c[k];
+		from[k] = c.name;
+	}
+}
+
 export function worstCase(cases: CaseResult[]): WorstCase {
 	const from: WorstCaseSource = {};
 	const unstable = cases.find((c) => !c.stable) ?? null;
@@ -45,13 +54,6 @@ export function worstCase(cases: CaseResult[]): WorstCase {
 		diskMargin: null,
 		from
 	};
-	const take = (c: CaseResult | null, keys: Key[]) => {
-		if (!c) return;
-		for (const k of keys) {
-			(out as unknown as Record<string, unknown>)[k] = c[k];
-			from[k] = c.name;
-		}
-	};
 	if (unstable) {
 		from.stable = unstable.name;
 		for (const k of [
@@ -66,6 +68,8 @@ export function worstCase(cases: CaseResult[]): WorstCase {
 			from[k] = unstable.name;
 	} else {
 		take(
+			out,
+			from,
 			pick(
 				cases,
 				(c) => c.upperGainMarginDb !== null,
@@ -74,6 +78,8 @@ export function worstCase(cases: CaseResult[]): WorstCase {
 			['upperGainMarginDb', 'upperGainMarginHz']
 		);
 		take(
+			out,
+			from,
 			pick(
 				cases,
 				(c) => c.lowerGainMarginDb !== null,
@@ -82,6 +88,8 @@ export function worstCase(cases: CaseResult[]): WorstCase {
 			['lowerGainMarginDb', 'lowerGainMarginHz']
 		);
 		take(
+			out,
+			from,
 			pick(
 				cases,
 				(c) => c.delayMarginSeconds !== null,
@@ -90,6 +98,8 @@ export function worstCase(cases: CaseResult[]): WorstCase {
 			['delayMarginSeconds', 'delayMarginSamples']
 		);
 		take(
+			out,
+			from,
 			pick(
 				cases,
 				(c) => c.diskMargin !== null,
@@ -100,6 +110,8 @@ export function worstCase(cases: CaseResult[]): WorstCase {
 	}
 	if (mostPoles && mostPoles.unstablePoles > 0) from.unstablePoles = mostPoles.name;
 	take(
+		out,
+		from,
 		pick(
 			cases,
 			(c) => c.phaseMarginDeg !== null,
@@ -108,6 +120,8 @@ export function worstCase(cases: CaseResult[]): WorstCase {
 		['phaseMarginDeg', 'phaseMarginHz']
 	);
 	take(
+		out,
+		from,
 		pick(
 			cases,
 			(c) => c.modulusMargin !== null,

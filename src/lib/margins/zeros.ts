@@ -5,6 +5,7 @@
  * M = Φ − I, where zeros crowding at z = 1 (a fast-sampled block) are resolved to full relative
  * precision instead of to the rounding of z-coefficients.
  */
+import { aberthStep } from './aberth';
 import { fitOnCircle } from './circle-fit';
 import type { Matrix } from './linalg';
 import type { Roots } from './roots';
@@ -102,28 +103,8 @@ function refineOnN(sys: SampledSystem, start: Roots): { re: Float64Array; im: Fl
 			if (fixed[k]) continue;
 			const step = newtonStep(sys, re[k], im[k]);
 			if (!step) continue;
-			const [rr, ri] = step;
-			let sr = 0;
-			let si = 0;
-			for (let j = 0; j < m; j++) {
-				if (j === k) continue;
-				const dr = re[k] - re[j];
-				const di = im[k] - im[j];
-				const d = dr * dr + di * di;
-				if (d === 0) continue;
-				sr += dr / d;
-				si -= di / d;
-			}
-			// correction = r / (1 − r·Σ)
-			const br = 1 - (rr * sr - ri * si);
-			const bi = -(rr * si + ri * sr);
-			const bd = br * br + bi * bi;
-			const cr = bd === 0 ? rr : (rr * br + ri * bi) / bd;
-			const ci = bd === 0 ? ri : (ri * br - rr * bi) / bd;
-			if (!Number.isFinite(cr) || !Number.isFinite(ci)) continue;
-			re[k] -= cr;
-			im[k] -= ci;
-			if (Math.hypot(cr, ci) > 1e-14 * Math.hypot(re[k], im[k])) moved++;
+			const moves = aberthStep(re, im, m, k, step[0], step[1]);
+			if (moves > 1e-14 * Math.hypot(re[k], im[k])) moved++;
 		}
 		if (moved === 0) break;
 	}

@@ -3,10 +3,24 @@
  * integrators and Tustin zeros written out as rounded coefficients, z-domain state space.
  */
 import { describe, expect, it } from 'vitest';
-import { computeMargins, sampleResponse } from '../../../src/lib/margins/index';
-import { caseOf, model, near, nearRel, poly, TWO_PI } from './helpers';
+import { computeMargins, sampleResponse, type CaseResult } from '../../../src/lib/margins/index';
+import { buildCases } from '../../../src/lib/margins/loop';
+import { loopRoots } from '../../../src/lib/margins/response';
+import { caseOf, conv, model, near, nearRel, poly, TWO_PI } from './helpers';
 
 type C = [number, number];
+
+/** Two descriptions of one loop: the same stability, crossovers and modulus margin (rel. to tol). */
+function expectSameLoop(a: CaseResult, b: CaseResult, tol: number) {
+	expect(a.stable).toBe(b.stable);
+	expect(a.gainCrossovers.length).toBe(b.gainCrossovers.length);
+	expect(a.phaseCrossovers.length).toBe(b.phaseCrossovers.length);
+	a.phaseCrossovers.forEach((p, i) => {
+		nearRel(p.hz, b.phaseCrossovers[i].hz, tol);
+		near(p.gainMarginDb, b.phaseCrossovers[i].gainMarginDb, 10 * tol);
+	});
+	nearRel(a.modulusMargin, b.modulusMargin!, tol);
+}
 const cmul = (a: C, b: C): C => [a[0] * b[0] - a[1] * b[1], a[0] * b[1] + a[1] * b[0]];
 const cdiv = (a: C, b: C): C => {
 	const d = b[0] * b[0] + b[1] * b[1];
@@ -140,13 +154,7 @@ describe('z-domain state space', () => {
 			sampleTimeSeconds: 0.01,
 			blocks: [{ type: 'factored', zeros: [-0.5], poles: [0.9, 0.5], gain: 0.1 }]
 		});
-		expect(ss.stable).toBe(fac.stable);
-		expect(ss.gainCrossovers.length).toBe(fac.gainCrossovers.length);
-		ss.phaseCrossovers.forEach((p, i) => {
-			nearRel(p.hz, fac.phaseCrossovers[i].hz, 1e-10);
-			near(p.gainMarginDb, fac.phaseCrossovers[i].gainMarginDb, 1e-9);
-		});
-		nearRel(ss.modulusMargin, fac.modulusMargin!, 1e-10);
+		expectSameLoop(ss, fac, 1e-10);
 	});
 
 	it('worst case and cases work the same for sampled loops', () => {
@@ -159,5 +167,21 @@ describe('z-domain state space', () => {
 		);
 		expect(r.worstCase.from.upperGainMarginDb).toBe('b');
 		expect(r.worstCase.delayMarginSamples).toBe(r.cases[1].delayMarginSamples);
+	});
+
+	it('poles exactly at z = 0 (a computational delay written into the coefficients) stay exact', () => {
+		// 0.1(z + 0.5) / (z²(z − 0.9)(z − 0.5)): the same loop as coefficients and as roots
+		const den = conv(conv([1, 0, 0], [1, -0.9]), [1, -0.5]);
+		const written = { sampleTimeSeconds: 0.01, blocks: [poly([0.1, 0.05], den)] };
+		const [built] = buildCases(model(written));
+		const { poles } = loopRoots(built);
+		const atOrigin = Array.from(poles.re).filter((x, i) => x === 0 && poles.im[i] === 0);
+		expect(atOrigin.length).toBe(2);
+		const a = caseOf(written);
+		const b = caseOf({
+			sampleTimeSeconds: 0.01,
+			blocks: [{ type: 'factored', zeros: [-0.5], poles: [0, 0, 0.9, 0.5], gain: 0.1 }]
+		});
+		expectSameLoop(a, b, 1e-12);
 	});
 });
