@@ -157,12 +157,20 @@ function listItem(r: ListRow, activeDeviations: number): LoopListItem {
 	};
 }
 
-/** The SQL of one page of the list (also run by bench:web under EXPLAIN). */
-export function listQuery(
+/** Deviations of loop l in force now. */
+const ACTIVE_DEVIATIONS = `(select count(*)::int from deviation d where d.loop_id = l.id and d.revoked_at is null
+	and d.starts_at <= now() and d.expires_at > now())`;
+
+/**
+ * A page of the list: `with page as (the ids)`, then `body(order, total)` over the page's loops
+ * (l, p, c, u) with `total` the count expression (or null when not asked for).
+ */
+function pageQuery(
 	f: LoopFilters,
 	limit: number,
 	offset: number,
-	withTotal = true
+	withTotal: boolean,
+	body: (order: string, total: string) => string
 ): { sql: string; params: unknown[] } {
 	const where = whereOf(f);
 	const order = orderOf(f);
@@ -174,15 +182,23 @@ export function listQuery(
 	const total = withTotal ? `(select count(*) from loop l ${where.sql})` : 'null::bigint';
 	return {
 		sql: `with page as (select l.id ${fromWith(order.joins)} ${where.sql} ${order.sql} limit ? offset ?)
-		select ${LIST_COLUMNS},
-		       ${total} as total,
-		       (select count(*)::int from deviation d where d.loop_id = l.id and d.revoked_at is null
-		          and d.starts_at <= now() and d.expires_at > now()) as active_deviations
-		from page join loop l on l.id = page.id ${JOINS}
-		${order.sql}`,
+		${body(order.sql, total)}`,
 		params: [...where.params, limit, offset, ...(withTotal ? where.params : [])]
 	};
 }
+
+/** The SQL of one page of the list as rows (also run by bench:web under EXPLAIN). */
+export const listQuery = (f: LoopFilters, limit: number, offset: number, withTotal = true) =>
+	pageQuery(
+		f,
+		limit,
+		offset,
+		withTotal,
+		(order, total) => `select ${LIST_COLUMNS}, ${total} as total,
+		       ${ACTIVE_DEVIATIONS} as active_deviations
+		from page join loop l on l.id = page.id ${JOINS}
+		${order}`
+	);
 
 const isoText = (column: string) =>
 	`to_char(${column} at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"')`;
@@ -198,8 +214,7 @@ const ITEM_JSON = `json_build_object(
 	'class', json_build_object('id', c.id, 'key', c.key, 'name', c.name),
 	'owner', json_build_object('id', u.id, 'name', u.name, 'email', u.email),
 	'tags', l.tags, 'note', l.note, 'verdict', l.verdict,
-	'activeDeviations', (select count(*)::int from deviation d where d.loop_id = l.id and d.revoked_at is null
-		and d.starts_at <= now() and d.expires_at > now()),
+	'activeDeviations', ${ACTIVE_DEVIATIONS},
 	'archivedAt', ${isoText('l.archived_at')}, 'createdAt', ${isoText('l.created_at')}, 'updatedAt', ${isoText('l.updated_at')},
 	'worstCase', json_build_object('phaseMarginDeg', l.wc_phase_margin_deg, 'upperGainMarginDb', l.wc_upper_gain_margin_db,
 		'delayMarginS', l.wc_delay_margin_s, 'modulusMargin', l.wc_modulus_margin),
@@ -208,22 +223,18 @@ const ITEM_JSON = `json_build_object(
 	'judgedAt', ${isoText('l.judged_at')}, 'verdictChangedAt', ${isoText('l.verdict_changed_at')})`;
 
 /** One row: the page's items as JSON text (in list order) and, if asked, the total. */
-export function listJsonQuery(
-	f: LoopFilters,
-	limit: number,
-	offset: number,
-	withTotal = true
-): { sql: string; params: unknown[] } {
-	const where = whereOf(f);
-	const order = orderOf(f);
-	const total = withTotal ? `(select count(*) from loop l ${where.sql})` : 'null::bigint';
-	return {
-		sql: `with page as (select l.id ${fromWith(order.joins)} ${where.sql} ${order.sql} limit ? offset ?)
-		select coalesce(json_agg(${ITEM_JSON} ${order.sql}), '[]')::text as items, ${total} as total
-		from page join loop l on l.id = page.id ${JOINS}`,
-		params: [...where.params, limit, offset, ...(withTotal ? where.params : [])]
-	};
-}
+export const listJsonQuery = (f: LoopFilters, limit: number, offset: number, withTotal = true) =>
+	pageQuery(
+		f,
+		limit,
+		offset,
+		withTotal,
+		(
+			order,
+			total
+		) => `select coalesce(json_agg(${ITEM_JSON} ${order}), '[]')::text as items, ${total} as total
+		from page join loop l on l.id = page.id ${JOINS}`
+	);
 
 async function pageRows(
 	em: EntityManager,
