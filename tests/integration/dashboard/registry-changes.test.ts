@@ -64,13 +64,20 @@ async function notified(before: number | undefined) {
 }
 
 /**
- * Notifications arrive in order: once one sent now has arrived, so have those of every earlier
- * write, and no late one can drop an entry in the middle of the next test.
+ * Wait until no notification is on its way: send one and wait for the stamp to move, then until
+ * it has stayed put for 150 ms (a late notification of the previous test's writes may be the one
+ * that moved it first), so none drops an entry in the middle of the next test.
  */
 async function settled() {
 	const stamp = changeStamp(r.em());
 	await exec(`select pg_notify('headroom_registry', 'test')`);
 	await notified(stamp);
+	for (let quiet = changeStamp(r.em()); ;) {
+		await new Promise((ok) => setTimeout(ok, 150));
+		const now = changeStamp(r.em());
+		if (now === quiet) return;
+		quiet = now;
+	}
 }
 beforeEach(async () => {
 	if (changeStamp(r.em()) !== undefined) await settled();
