@@ -173,7 +173,7 @@ function registryWriter(databaseUrl: string) {
 	const running = withClient({ connectionString: databaseUrl }, async (client) => {
 		while (!stopped) {
 			await client.query(
-				`update loop set judged_at = now() where id = (select id from loop offset floor(random() * 10000)::int limit 1)`
+				`update loop set judged_at = now() where id = (select id from loop offset floor(random() * ${LOOPS})::int limit 1)`
 			);
 			writes++;
 			await new Promise((ok) => setTimeout(ok, 1000 / WRITES_PER_SECOND));
