@@ -49,9 +49,9 @@ export interface Share<T> {
 }
 const unshared = <T>(): Share<T> => ({ current: () => true });
 
+/** A result of the current generation (every change empties the map). */
 interface Entry {
 	value: unknown;
-	generation: number;
 	storedAt: number;
 }
 
@@ -78,7 +78,7 @@ class RegistryChanges {
 	private get<T>(key: string): T | undefined {
 		const entry = this.entries.get(key);
 		if (!entry) return undefined;
-		if (entry.generation !== this.generation || Date.now() - entry.storedAt > ENTRY_TTL_MS) {
+		if (Date.now() - entry.storedAt > ENTRY_TTL_MS) {
 			this.entries.delete(key);
 			return undefined;
 		}
@@ -90,7 +90,7 @@ class RegistryChanges {
 		if (!this.client || stamp !== this.generation) return;
 		this.entries.delete(key);
 		if (this.entries.size >= MAX_ENTRIES) this.entries.delete(this.entries.keys().next().value!);
-		this.entries.set(key, { value, generation: stamp, storedAt: Date.now() });
+		this.entries.set(key, { value, storedAt: Date.now() });
 	}
 
 	share<T>(key: string): Share<T> {
@@ -112,12 +112,8 @@ class RegistryChanges {
 		return { lead, current };
 	}
 
-	/** This process wrote (a non-GET request ended): its next read must see it, notified yet or not. */
-	wrote(): void {
-		this.changed();
-	}
-
-	private changed(): void {
+	/** Something changed (notified, or written by this process): a new generation, nothing kept. */
+	changed(): void {
 		this.generation++;
 		this.entries.clear();
 		// requests already waiting still get their leader's value, and see current() false
@@ -206,7 +202,7 @@ export const shareResult = <T>(em: EntityManager, key: string): Share<T> =>
  * older count (see hooks/registry-writes.ts).
  */
 export function forgetResults(): void {
-	current?.wrote();
+	current?.changed();
 }
 
 /** compute() once per generation for this key (always, when not listening or in a transaction). */
