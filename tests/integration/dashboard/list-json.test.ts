@@ -1,17 +1,23 @@
 /**
- * GET /api/loops answers with JSON that PostgreSQL renders (listLoopsJson); the dashboard, the
- * export and the reports read the same page as objects (listLoops). Both must say exactly the
- * same thing, for every sort, direction, filter and page, nulls, arrays and dates included.
+ * GET /api/loops answers with JSON kept per loop by triggers (loop.list_item, listLoopsJson);
+ * the dashboard, the export and the reports read the same page as objects built from the live
+ * columns (listLoops). Both must say exactly the same thing, for every sort, direction, filter
+ * and page, nulls, arrays and dates included, and still after every kind of write.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { dashboardScenario } from './support';
 import type { Registry } from '../registry/support';
-import { listLoops, listLoopsJson } from '../../../src/lib/server/registry/loops';
+import { listLoops, listLoopsJson, updateLoop } from '../../../src/lib/server/registry/loops';
+import { updateClass } from '../../../src/lib/server/registry/classes';
+import { listDeviations, revokeDeviation } from '../../../src/lib/server/registry/deviations';
+import { judgeLoops } from '../../../src/lib/server/verdicts/judge-loops';
+import { addComputedRevision } from './support';
 import { LOOP_SORTS, type LoopFilters } from '../../../src/lib/server/registry/loop-query';
 
 let r: Registry;
+let loops: Awaited<ReturnType<typeof dashboardScenario>>['loops'];
 beforeAll(async () => {
-	({ r } = await dashboardScenario('dash_json'));
+	({ r, loops } = await dashboardScenario('dash_json'));
 	// Values whose text forms differ between PostgreSQL and JavaScript: tiny and huge floats, a
 	// note with quotes, a backslash, a line break and letters beyond ASCII.
 	await r
@@ -74,5 +80,71 @@ describe('the API page rendered by PostgreSQL', () => {
 		const page = await same({ archived: 'all' }, 40, 3);
 		expect(page.items).toEqual([]);
 		expect(page.total).toBe(7);
+	});
+
+	it('stays equal after every kind of write: edits, moves, renames, judgements, deviations', async () => {
+		const lead = r.users.lead;
+		const all = () => same({ archived: 'all', sort: 'key' }, 1, 50);
+		const item = async (key: string) => (await all()).items.find((l) => l.key === key)!;
+		const conn = r.em().getConnection();
+
+		await updateLoop(r.em(), lead, loops.ok.id, {
+			name: 'Axis A speed (rev B)',
+			tags: ['rig-c'],
+			note: 'Retuned.'
+		});
+		expect(await item('a-ok')).toMatchObject({
+			name: 'Axis A speed (rev B)',
+			tags: ['rig-c'],
+			note: 'Retuned.'
+		});
+
+		await updateLoop(r.em(), lead, loops.pm.id, {
+			product: 'stage',
+			class: 'current',
+			owner: r.users.engineer2.email
+		});
+		expect(await item('b-pm')).toMatchObject({
+			product: { key: 'stage' },
+			class: { key: 'current' },
+			owner: { email: r.users.engineer2.email }
+		});
+
+		await updateClass(r.em(), lead, 'speed', { name: 'Speed loop (2027)' });
+		expect((await item('d-unstable')).class.name).toBe('Speed loop (2027)');
+
+		// No screen renames a product or a user yet; the triggers follow any write all the same.
+		await conn.execute(
+			`update product set key = 'stage-2', name = 'Stage Mk2' where key = 'stage'`
+		);
+		expect((await item('d-unstable')).product).toMatchObject({ key: 'stage-2', name: 'Stage Mk2' });
+		await conn.execute(
+			`update app_user set name = 'E. Second', email = 'second@registry.test' where id = ?`,
+			[r.users.engineer2.id]
+		);
+		expect((await item('f-covered')).owner).toMatchObject({
+			name: 'E. Second',
+			email: 'second@registry.test'
+		});
+
+		await addComputedRevision(
+			r,
+			loops.ok.id,
+			{ phaseMarginDeg: 30, upperGainMarginDb: 10, delayMarginSeconds: 0.005, modulusMargin: 0.7 },
+			'2026-08-01T00:00:00.000Z'
+		);
+		await r.em().transactional((tx) => judgeLoops(tx, [loops.ok.id], 'revision'));
+		expect(await item('a-ok')).toMatchObject({
+			verdict: 'noncompliant',
+			worstCase: { phaseMarginDeg: 30 }
+		});
+
+		await updateLoop(r.em(), lead, loops.gm.id, { archived: true });
+		expect((await item('c-gm')).archivedAt).not.toBeNull();
+
+		// Deviations in force are counted when the page is read, not when the item was written.
+		const [deviation] = await listDeviations(r.em(), loops.covered.id);
+		await revokeDeviation(r.em(), lead, deviation.id);
+		expect((await item('f-covered')).activeDeviations).toBe(0);
 	});
 });

@@ -9,6 +9,7 @@
  */
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
 import { dashboardScenario } from './support';
+import { changeHelpers } from './changes-support';
 import type { Registry } from '../registry/support';
 import { listLoops } from '../../../src/lib/server/registry/loops';
 import { loopSummary } from '../../../src/lib/server/registry/loop-summary';
@@ -36,49 +37,11 @@ afterAll(async () => {
 const page = { page: 1, pageSize: 2 };
 const total = async (f: LoopFilters) => (await listLoops(r.em(), f, page)).total;
 const exec = (sql: string, params: unknown[] = []) => r.em().getConnection().execute(sql, params);
+const { silentCopy, notified, settled } = changeHelpers(() => r);
 const actual = async (where: string) =>
 	(await exec(`select count(*)::int as n from loop where archived_at is null and ${where}`))[0]
 		.n as number;
 
-/** Insert a copy of loop `key` as `newKey` without notifying anyone (trigger off). */
-async function silentCopy(key: string, newKey: string) {
-	await exec('alter table loop disable trigger loop_notify_change');
-	try {
-		await exec(
-			`insert into loop (id, product_id, loop_class_id, key, name, owner_id, tags, note, verdict, verdict_detail,
-			   failing_criteria, worst_shortfall, wc_phase_margin_deg, created_at, updated_at)
-			 select gen_random_uuid(), product_id, loop_class_id, ?, name, owner_id, tags, note, verdict, verdict_detail,
-			   failing_criteria, worst_shortfall, wc_phase_margin_deg, now(), now() from loop where key = ?`,
-			[newKey, key]
-		);
-	} finally {
-		await exec('alter table loop enable trigger loop_notify_change');
-	}
-}
-
-/** Wait (≤ 5 s) until the listener has seen a notification: the stamp moves on. */
-async function notified(before: number | undefined) {
-	for (let i = 0; i < 100 && changeStamp(r.em()) === before; i++)
-		await new Promise((ok) => setTimeout(ok, 50));
-	expect(changeStamp(r.em())).not.toBe(before);
-}
-
-/**
- * Wait until no notification is on its way: send one and wait for the stamp to move, then until
- * it has stayed put for 150 ms (a late notification of the previous test's writes may be the one
- * that moved it first), so none drops an entry in the middle of the next test.
- */
-async function settled() {
-	const stamp = changeStamp(r.em());
-	await exec(`select pg_notify('headroom_registry', 'test')`);
-	await notified(stamp);
-	for (let quiet = changeStamp(r.em()); ;) {
-		await new Promise((ok) => setTimeout(ok, 150));
-		const now = changeStamp(r.em());
-		if (now === quiet) return;
-		quiet = now;
-	}
-}
 beforeEach(async () => {
 	if (changeStamp(r.em()) !== undefined) await settled();
 });

@@ -1,9 +1,12 @@
 /**
  * Results derived from the registry's tables (how many loops match a filter, the dashboard's
- * counts) kept in memory until PostgreSQL says one of those tables changed.
+ * counts, whole pages of GET /api/loops) kept in memory until PostgreSQL says one of those
+ * tables changed, or until a moment the result names (a page ends when a deviation on it starts
+ * or expires).
  *
- * A statement trigger on loop, product, loop_class and app_user (migration …_registry_changes)
- * sends a notification on channel `headroom_registry` for every statement that writes them. The
+ * A statement trigger on loop, product, loop_class, app_user (migration …_registry_changes) and
+ * deviation (…_list_item) sends a notification on channel `headroom_registry` for every
+ * statement that writes them. The
  * web process listens on a connection of its own and bumps a generation number on each; an entry
  * is only valid for the generation it was computed in. Counting the loops a filter matches costs
  * PostgreSQL as much as finding the page itself (every matching row is visited), while someone
@@ -32,19 +35,22 @@ export const CHANNEL = 'headroom_registry';
 export const ENTRY_TTL_MS = 60_000;
 /** Distinct keys kept; the oldest go first (filters nobody repeats must not grow the map). */
 export const MAX_ENTRIES = 2000;
+/** Bytes of text and buffers kept (pages of the list are ~70 kB each); the oldest go first. */
+export const MAX_BYTES = 32 * 1024 * 1024;
 const RECONNECT_MS = 1000;
 
 /**
  * What a request is to do about one result (see shareResult): use `known`; or await `wait`,
  * another request's computation of it (undefined if that failed); or compute it and hand it to
- * `lead` (always: undefined on failure, so that those waiting go on). `current()`: nothing has
+ * `lead` (always: undefined on failure, so that those waiting go on; `until`, a time in ms since
+ * the epoch after which the value no longer holds, if it expires before ENTRY_TTL_MS). `current()`: nothing has
  * changed since — false means a known or awaited value may predate a write: compute it afresh.
  * With none of the three, nothing is shared: compute it.
  */
 export interface Share<T> {
 	known?: T;
 	wait?: Promise<T | undefined>;
-	lead?: (value: T | undefined) => void;
+	lead?: (value: T | undefined, until?: number) => void;
 	current: () => boolean;
 }
 const unshared = <T>(): Share<T> => ({ current: () => true });
@@ -52,8 +58,16 @@ const unshared = <T>(): Share<T> => ({ current: () => true });
 /** A result of the current generation (every change empties the map). */
 interface Entry {
 	value: unknown;
-	storedAt: number;
+	expiresAt: number;
+	bytes: number;
 }
+
+const sizeOf = (value: unknown) =>
+	typeof value === 'string'
+		? value.length * 2
+		: value instanceof Uint8Array
+			? value.byteLength
+			: 64;
 
 class RegistryChanges {
 	private generation = 0;
@@ -61,6 +75,7 @@ class RegistryChanges {
 	private stopped = false;
 	private retry: ReturnType<typeof setTimeout> | undefined;
 	private readonly entries = new Map<string, Entry>();
+	private bytes = 0;
 	/** Results being computed now, in this generation, by the request that asked first. */
 	private readonly pending = new Map<string, Promise<unknown>>();
 	/** Resolves once the first LISTEN is in place (or failed), for callers that want to wait. */
@@ -78,19 +93,39 @@ class RegistryChanges {
 	private get<T>(key: string): T | undefined {
 		const entry = this.entries.get(key);
 		if (!entry) return undefined;
-		if (Date.now() - entry.storedAt > ENTRY_TTL_MS) {
-			this.entries.delete(key);
+		if (Date.now() >= entry.expiresAt) {
+			this.drop(key);
 			return undefined;
 		}
 		return entry.value as T;
 	}
 
-	/** Keeps value if nothing changed since `stamp` was taken (before the query that made it). */
-	private set(key: string, value: unknown, stamp: number): void {
-		if (!this.client || stamp !== this.generation) return;
+	private drop(key: string): void {
+		const entry = this.entries.get(key);
+		if (!entry) return;
+		this.bytes -= entry.bytes;
 		this.entries.delete(key);
-		if (this.entries.size >= MAX_ENTRIES) this.entries.delete(this.entries.keys().next().value!);
-		this.entries.set(key, { value, storedAt: Date.now() });
+	}
+
+	/**
+	 * Keeps value if nothing changed since `stamp` was taken (before the query that made it),
+	 * until ENTRY_TTL_MS from now or `until`, whichever comes first.
+	 */
+	private set(key: string, value: unknown, stamp: number, until = Infinity): void {
+		if (!this.client || stamp !== this.generation) return;
+		const expiresAt = Math.min(Date.now() + ENTRY_TTL_MS, until);
+		const bytes = sizeOf(value);
+		if (expiresAt <= Date.now() || bytes > MAX_BYTES) return;
+		this.drop(key);
+		while (this.entries.size >= MAX_ENTRIES || this.bytes + bytes > MAX_BYTES)
+			this.drop(this.entries.keys().next().value!);
+		this.entries.set(key, { value, expiresAt, bytes });
+		this.bytes += bytes;
+	}
+
+	/** What is kept now (for tests and diagnostics). */
+	usage(): { entries: number; bytes: number } {
+		return { entries: this.entries.size, bytes: this.bytes };
 	}
 
 	share<T>(key: string): Share<T> {
@@ -104,9 +139,9 @@ class RegistryChanges {
 		let settle!: (value: T | undefined) => void;
 		const promise = new Promise<T | undefined>((ok) => (settle = ok));
 		this.pending.set(key, promise);
-		const lead = (value: T | undefined) => {
+		const lead = (value: T | undefined, until?: number) => {
 			if (this.pending.get(key) === promise) this.pending.delete(key);
-			if (value !== undefined) this.set(key, value, stamp);
+			if (value !== undefined) this.set(key, value, stamp, until);
 			settle(value);
 		};
 		return { lead, current };
@@ -116,6 +151,7 @@ class RegistryChanges {
 	changed(): void {
 		this.generation++;
 		this.entries.clear();
+		this.bytes = 0;
 		// requests already waiting still get their leader's value, and see current() false
 		this.pending.clear();
 	}
@@ -205,11 +241,18 @@ export function forgetResults(): void {
 	current?.changed();
 }
 
-/** compute() once per generation for this key (always, when not listening or in a transaction). */
+/** What is kept in memory now (zero when not listening). */
+export const resultUsage = () => current?.usage() ?? { entries: 0, bytes: 0 };
+
+/**
+ * compute() once per generation for this key (always, when not listening or in a transaction);
+ * `until(value)`: when the value stops holding even if nothing is written (ms since the epoch).
+ */
 export async function remembered<T>(
 	em: EntityManager,
 	key: string,
-	compute: () => Promise<T>
+	compute: () => Promise<T>,
+	until?: (value: T) => number | undefined
 ): Promise<T> {
 	const share = shareResult<T>(em, key);
 	if (share.known !== undefined && share.current()) return share.known;
@@ -222,6 +265,6 @@ export async function remembered<T>(
 		value = await compute();
 		return value;
 	} finally {
-		share.lead?.(value);
+		share.lead?.(value, value === undefined ? undefined : until?.(value));
 	}
 }

@@ -5,10 +5,10 @@
  */
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { CriterionResult, Verdict } from '../../compliance/judge';
-import { fromWith, JOINS, orderOf, whereOf, type LoopFilters } from './loop-query';
+import { fromWith, JOINS, joinsOf, orderOf, whereOf, type LoopFilters } from './loop-query';
 import { offsetOf, type PageOf, type Paging } from './common';
 import { preparedRows } from '../db/prepared';
-import { shareResult } from '../db/registry-changes';
+import { remembered, shareResult } from '../db/registry-changes';
 import type { LoopView } from './loops';
 
 /** A row of the loop list: the loop, its worst-case margins and every criterion it was judged on. */
@@ -103,20 +103,29 @@ function listItem(r: ListRow, activeDeviations: number): LoopListItem {
 	};
 }
 
+/**
+ * When the deviations in force on the page's loops next change with no write (one starts or
+ * expires), in ms since the epoch; null when none will.
+ */
+const NEXT_DEVIATION_CHANGE = `(select (extract(epoch from min(least(case when d.starts_at > now() then d.starts_at end,
+	case when d.expires_at > now() then d.expires_at end))) * 1000)::float8
+	from deviation d where d.loop_id in (select id from page) and d.revoked_at is null)`;
+
 /** Deviations of loop l in force now. */
 const ACTIVE_DEVIATIONS = `(select count(*)::int from deviation d where d.loop_id = l.id and d.revoked_at is null
 	and d.starts_at <= now() and d.expires_at > now())`;
 
 /**
- * A page of the list: `with page as (the ids)`, then `body(order, total)` over the page's loops
- * (l, p, c, u) with `total` the count expression (or null when not asked for).
+ * A page of the list: `with page as (the ids)`, then `body(order, total, joins)` over the page's
+ * loops (l) with `total` the count expression (or null when not asked for) and `joins` the
+ * tables the order needs (p, c or u).
  */
 function pageQuery(
 	f: LoopFilters,
 	limit: number,
 	offset: number,
 	withTotal: boolean,
-	body: (order: string, total: string) => string
+	body: (order: string, total: string, joins: string) => string
 ): { sql: string; params: unknown[] } {
 	const where = whereOf(f);
 	const order = orderOf(f);
@@ -128,7 +137,7 @@ function pageQuery(
 	const total = withTotal ? `(select count(*) from loop l ${where.sql})` : 'null::bigint';
 	return {
 		sql: `with page as (select l.id ${fromWith(order.joins)} ${where.sql} ${order.sql} limit ? offset ?)
-		${body(order.sql, total)}`,
+		${body(order.sql, total, joinsOf(order.joins))}`,
 		params: [...where.params, limit, offset, ...(withTotal ? where.params : [])]
 	};
 }
@@ -146,29 +155,13 @@ export const listQuery = (f: LoopFilters, limit: number, offset: number, withTot
 		${order}`
 	);
 
-const isoText = (column: string) =>
-	`to_char(${column} at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"')`;
-
 /**
- * The JSON of a page's items as listItem() shapes them, built by PostgreSQL: the API answers
- * with this text as it comes, with no row objects to parse, build and serialise again.
- * list-json.test.ts holds it equal to listItem's output.
+ * One row: the page's items as JSON text (in list order) and, if asked, the total. Each item is
+ * the loop's stored `list_item` (kept by triggers, migration 20261202190000) with the deviations
+ * in force now put in front: the API answers with this text as it comes, with no JSON built per
+ * row and no row objects to parse, build and serialise again. list-json.test.ts holds it equal
+ * to listItem's output.
  */
-const ITEM_JSON = `json_build_object(
-	'id', l.id, 'key', l.key, 'name', l.name,
-	'product', json_build_object('id', p.id, 'key', p.key, 'name', p.name),
-	'class', json_build_object('id', c.id, 'key', c.key, 'name', c.name),
-	'owner', json_build_object('id', u.id, 'name', u.name, 'email', u.email),
-	'tags', l.tags, 'note', l.note, 'verdict', l.verdict,
-	'activeDeviations', ${ACTIVE_DEVIATIONS},
-	'archivedAt', ${isoText('l.archived_at')}, 'createdAt', ${isoText('l.created_at')}, 'updatedAt', ${isoText('l.updated_at')},
-	'worstCase', json_build_object('phaseMarginDeg', l.wc_phase_margin_deg, 'upperGainMarginDb', l.wc_upper_gain_margin_db,
-		'delayMarginS', l.wc_delay_margin_s, 'modulusMargin', l.wc_modulus_margin),
-	'criteria', coalesce(l.verdict_detail->'criteria', '[]'::jsonb),
-	'failing', l.failing_criteria, 'worstShortfall', l.worst_shortfall,
-	'judgedAt', ${isoText('l.judged_at')}, 'verdictChangedAt', ${isoText('l.verdict_changed_at')})`;
-
-/** One row: the page's items as JSON text (in list order) and, if asked, the total. */
 export const listJsonQuery = (f: LoopFilters, limit: number, offset: number, withTotal = true) =>
 	pageQuery(
 		f,
@@ -177,9 +170,11 @@ export const listJsonQuery = (f: LoopFilters, limit: number, offset: number, wit
 		withTotal,
 		(
 			order,
-			total
-		) => `select coalesce(json_agg(${ITEM_JSON} ${order}), '[]')::text as items, ${total} as total
-		from page join loop l on l.id = page.id ${JOINS}`
+			total,
+			joins
+		) => `select coalesce('[' || string_agg('{"activeDeviations":' || ${ACTIVE_DEVIATIONS} || ',' || substr(l.list_item, 2), ',' ${order}) || ']', '[]') as items,
+		       ${total} as total, ${NEXT_DEVIATION_CHANGE} as until
+		from page join loop l on l.id = page.id ${joins}`
 	);
 
 async function pageRows(
@@ -265,19 +260,60 @@ export async function listLoops(
 	return { items: page, total, ...paging };
 }
 
-/**
- * The same page as listLoops, as the JSON text of its PageOf (what GET /api/loops answers),
- * rendered by PostgreSQL (listJsonQuery).
- */
-export async function listLoopsJson(
+/** A page as JSON text, and when the deviations it counts next change (ms since the epoch). */
+async function pageJson(
 	em: EntityManager,
 	f: LoopFilters,
 	paging: Paging
-): Promise<string> {
+): Promise<{ text: string; until: number | undefined }> {
 	const { page, total } = await withTotal(em, f, async (counted) => {
 		const q = listJsonQuery(f, paging.pageSize, offsetOf(paging), counted);
-		const [row] = await preparedRows<{ items: string; total: string | null }>(em, q.sql, q.params);
-		return { page: row.items, total: row.total === null ? undefined : Number(row.total) };
+		const [row] = await preparedRows<{ items: string; total: string | null; until: number | null }>(
+			em,
+			q.sql,
+			q.params
+		);
+		return {
+			page: { items: row.items, until: row.until ?? undefined },
+			total: row.total === null ? undefined : Number(row.total)
+		};
 	});
-	return `{"items":${page},"total":${total},"page":${paging.page},"pageSize":${paging.pageSize}}`;
+	return {
+		text: `{"items":${page.items},"total":${total},"page":${paging.page},"pageSize":${paging.pageSize}}`,
+		until: page.until
+	};
+}
+
+/**
+ * The same page as listLoops, as the JSON text of its PageOf (what GET /api/loops answers),
+ * from the loops' stored items (listJsonQuery).
+ */
+export const listLoopsJson = async (em: EntityManager, f: LoopFilters, paging: Paging) =>
+	(await pageJson(em, f, paging)).text;
+
+const UTF8 = new TextEncoder();
+
+/**
+ * GET /api/loops's body: listLoopsJson as UTF-8, kept in memory until the registry next changes
+ * (db/registry-changes.ts) or a deviation on the page starts or expires. The page does not
+ * depend on who asks: every role reads every loop.
+ */
+export async function listLoopsBody(
+	em: EntityManager,
+	f: LoopFilters,
+	paging: Paging
+): Promise<Uint8Array<ArrayBuffer>> {
+	const where = whereOf(f);
+	const key = `loops.page ${where.sql} ${JSON.stringify(where.params)} ${orderOf(f).sql} ${paging.pageSize} ${paging.page}`;
+	let until: number | undefined;
+	return remembered(
+		em,
+		key,
+		async () => {
+			const page = await pageJson(em, f, paging);
+			until = page.until;
+			return UTF8.encode(page.text);
+		},
+		() => until
+	);
 }

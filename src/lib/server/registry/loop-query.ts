@@ -85,12 +85,15 @@ export const JOINS = Object.values(JOIN_SQL).join('\n\t');
  * foreign keys), so leaving an unused join out changes no row, and the planner cannot drop an
  * inner join on its own.
  */
-export const fromWith = (aliases: Iterable<Alias>) => {
+export const fromWith = (aliases: Iterable<Alias>) => `from loop l ${joinsOf(aliases)}`;
+
+/** The joins of fromWith alone. */
+export const joinsOf = (aliases: Iterable<Alias>) => {
 	const need = new Set(aliases);
-	return `from loop l ${(Object.keys(JOIN_SQL) as Alias[])
+	return (Object.keys(JOIN_SQL) as Alias[])
 		.filter((a) => need.has(a))
 		.map((a) => JOIN_SQL[a])
-		.join(' ')}`;
+		.join(' ');
 };
 
 const like = (q: string) => `%${q.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;

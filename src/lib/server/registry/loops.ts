@@ -64,6 +64,7 @@ export {
 	listJsonQuery,
 	listLoops,
 	listLoopsJson,
+	listLoopsBody,
 	listQuery,
 	queryLoops,
 	type LoopListItem

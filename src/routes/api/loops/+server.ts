@@ -4,7 +4,7 @@ import { readJsonObject } from '$lib/server/http/body';
 import { requireRole, requireScope } from '$lib/server/auth/guard';
 import { forkEm } from '$lib/server/db/orm';
 import { pagingFrom } from '$lib/server/registry/common';
-import { createLoop, listLoopsJson, loopFiltersFrom } from '$lib/server/registry/loops';
+import { createLoop, listLoopsBody, loopFiltersFrom } from '$lib/server/registry/loops';
 import type { RequestHandler } from './$types';
 
 /**
@@ -15,13 +15,10 @@ export const GET = (async (event) =>
 	api(async () => {
 		requireScope(event, 'read');
 		const params = event.url.searchParams;
-		// PostgreSQL renders the page's JSON (listLoopsJson): no rows to parse and serialise again.
-		const body = await listLoopsJson(await forkEm(), loopFiltersFrom(params), pagingFrom(params));
+		// The page's JSON from the loops' stored items, kept between writes (listLoopsBody).
+		const body = await listLoopsBody(await forkEm(), loopFiltersFrom(params), pagingFrom(params));
 		return new Response(body, {
-			headers: {
-				'content-type': 'application/json',
-				'content-length': String(Buffer.byteLength(body))
-			}
+			headers: { 'content-type': 'application/json', 'content-length': String(body.byteLength) }
 		});
 	})) satisfies RequestHandler;
 

@@ -45,7 +45,11 @@ export const LoopSchema = defineEntity({
 		worstShortfall: p.double().nullable(),
 		// The newest revision's upload time, kept by a trigger on revision inserts (migration
 		// 20261202140000_activity), so `changedSince` reads one column instead of the revisions.
-		lastRevisionAt: p.datetime().nullable()
+		lastRevisionAt: p.datetime().nullable(),
+		// The loop as GET /api/loops lists it (JSON text), written by a trigger on every insert
+		// and update and on product, class and owner renames (migration 20261202190000): never
+		// set it from code, and it is left out of every select unless asked for.
+		listItem: p.text().lazy(true, false).nullable()
 	},
 	uniques: [{ name: 'loop_product_key_unique', properties: ['product', 'key'] }],
 	indexes: [

@@ -9,6 +9,7 @@ import { Migration20261202033500_digest } from './Migration20261202033500_digest
 import { Migration20261202033800_dashboard } from './Migration20261202033800_dashboard';
 import { Migration20261202140000_activity } from './Migration20261202140000_activity';
 import { Migration20261202170000_registry_changes } from './Migration20261202170000_registry_changes';
+import { Migration20261202190000_list_item } from './Migration20261202190000_list_item';
 
 export const migrationsList: MigrationObject[] = [
 	{ name: 'Migration20261201224031_initial', class: Migration20261201224031_initial },
@@ -20,4 +21,5 @@ export const migrationsList: MigrationObject[] = [
 	{ name: 'Migration20261202033800_dashboard', class: Migration20261202033800_dashboard },
 	{ name: 'Migration20261202140000_activity', class: Migration20261202140000_activity },
 	{ name: 'Migration20261202170000_registry_changes', class: Migration20261202170000_registry_changes },
+	{ name: 'Migration20261202190000_list_item', class: Migration20261202190000_list_item },
 ];
