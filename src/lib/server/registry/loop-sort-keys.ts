@@ -8,8 +8,9 @@
  * the loops lists show by default (not archived). Sorts on another table (product, class,
  * owner) join it and sort.
  *
- * Shared by the query builder and the entity's index list; the migration that created the
- * indexes holds their SQL as text (migrations never change with the code).
+ * Shared by the query builder and the entity's index list; the migrations that created the
+ * indexes hold their SQL as text (migrations never change with the code): …140000_activity,
+ * then …200000_sort_include with the INCLUDE columns.
  */
 import { VERDICT_RANK } from '../../compliance/judge';
 
@@ -62,6 +63,25 @@ export const orderSql = (sort: LoopSort, dir: 'asc' | 'desc') =>
 
 const snake = (s: string) => s.replace(/[A-Z]/g, (c) => `_${c.toLowerCase()}`);
 
+/**
+ * Columns every sort index carries besides its key: what the list's filters other than text and
+ * tags test, and the columns under the sort expressions. A filtered page is then an index-only
+ * walk (no loop row is read to test a filter, only the page's own rows are), and deep pages of a
+ * filter cost index entries, not rows (bench:web: offset 200 of one class and verdict, 1.6 ms
+ * → 0.19 ms).
+ */
+export const SORT_INDEX_INCLUDE = [
+	'loop_class_id',
+	'product_id',
+	'owner_id',
+	'verdict',
+	'failing_criteria',
+	'verdict_changed_at',
+	'last_revision_at',
+	'wc_phase_margin_deg'
+];
+const includeSql = SORT_INDEX_INCLUDE.map((c) => `"${c}"`).join(', ');
+
 /** One partial index per (sort on a loop column, direction): name and `create index` SQL. */
 export const SORT_INDEXES: { name: string; sql: string }[] = (
 	Object.entries(SORT_KEYS) as [LoopSort, (typeof SORT_KEYS)[LoopSort]][]
@@ -72,7 +92,7 @@ export const SORT_INDEXES: { name: string; sql: string }[] = (
 			const name = `loop_sort_${snake(sort)}_${dir}`;
 			return {
 				name,
-				sql: `create index "${name}" on "loop" (${k.of('')} ${dir} nulls last, "key", "id") where "archived_at" is null`
+				sql: `create index "${name}" on "loop" (${k.of('')} ${dir} nulls last, "key", "id") include (${includeSql}) where "archived_at" is null`
 			};
 		})
 	);
