@@ -5,6 +5,7 @@ import { effectiveScopes, scopesForRole, type Scope } from '../../auth/roles';
 import { recordAudit } from '../audit/audit';
 import { Forbidden, Invalid, NotFound } from '../errors';
 import { preparedRows } from '../db/prepared';
+import { remembered } from '../db/registry-changes';
 import { newTokenValue, sha256, TOKEN_PREFIX } from './secrets';
 
 export interface TokenRow {
@@ -108,45 +109,68 @@ export interface TokenPrincipal {
 interface TokenLookup {
 	id: string;
 	scopes: Scope[];
-	stale: boolean;
+	used_at: number | null;
 	user_id: string;
 	email: string;
 	name: string;
 	role: User['role'];
 }
 
+/** A token found, as kept between changes: `usedAt` is its "last used" stamp (ms), as last written. */
+interface KnownToken {
+	id: string;
+	principal: TokenPrincipal;
+	usedAt: number;
+}
+
+const STAMP_EVERY_MS = 60_000;
+
+async function lookupToken(em: EntityManager, hash: string): Promise<KnownToken | undefined> {
+	const [found] = await preparedRows<TokenLookup>(
+		em,
+		`select t.id, t.scopes, (extract(epoch from t.last_used_at) * 1000)::float8 as used_at,
+		        u.id as user_id, u.email, u.name, u.role
+		 from api_token t join app_user u on u.id = t.owner_id
+		 where t.token_hash = ? and t.revoked_at is null and u.active`,
+		[hash]
+	);
+	if (!found) return undefined;
+	return {
+		id: found.id,
+		principal: {
+			user: { id: found.user_id, email: found.email, name: found.name, role: found.role },
+			scopes: effectiveScopes(found.scopes, found.role)
+		},
+		usedAt: found.used_at ?? 0
+	};
+}
+
 /**
  * The user and scopes a bearer value stands for, or null. A revoked token, a deactivated owner
  * and an unknown value all fail alike. Scopes shrink with the owner's current role.
  *
- * Every API call comes through here, so it is one indexed query (no entity hydration), plus a
- * write at most once a minute per token: "last used" needs no finer grain than that, and a busy
- * pipeline should not turn every API read into a write.
+ * Every API call comes through here. In the web server a token found is kept until the registry
+ * next changes (db/registry-changes.ts: api_token and app_user notify, so a revocation, a
+ * deactivation or a role change ends it), and values not found are never kept. Otherwise it is
+ * one indexed query (no entity hydration). "Last used" is written at most once a minute per
+ * token: it needs no finer grain, and a busy pipeline should not turn every API read into a write.
  */
 export async function resolveToken(
 	em: EntityManager,
 	value: string
 ): Promise<TokenPrincipal | null> {
 	if (!value.startsWith(TOKEN_PREFIX) || value.length > 200) return null;
-	const [found] = await preparedRows<TokenLookup>(
-		em,
-		`select t.id, t.scopes, (t.last_used_at is null or t.last_used_at < now() - interval '1 minute') as stale,
-		        u.id as user_id, u.email, u.name, u.role
-		 from api_token t join app_user u on u.id = t.owner_id
-		 where t.token_hash = ? and t.revoked_at is null and u.active`,
-		[sha256(value)]
-	);
-	if (!found) return null;
-	if (found.stale) {
+	const hash = sha256(value);
+	const known = await remembered(em, `token ${hash}`, () => lookupToken(em, hash));
+	if (!known) return null;
+	if (Date.now() - known.usedAt >= STAMP_EVERY_MS) {
+		known.usedAt = Date.now();
 		await em
 			.getConnection()
 			.execute(
 				`update api_token set last_used_at = now() where id = ? and (last_used_at is null or last_used_at < now() - interval '1 minute')`,
-				[found.id]
+				[known.id]
 			);
 	}
-	return {
-		user: { id: found.user_id, email: found.email, name: found.name, role: found.role },
-		scopes: effectiveScopes(found.scopes, found.role)
-	};
+	return known.principal;
 }

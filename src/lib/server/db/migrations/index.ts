@@ -11,6 +11,7 @@ import { Migration20261202140000_activity } from './Migration20261202140000_acti
 import { Migration20261202170000_registry_changes } from './Migration20261202170000_registry_changes';
 import { Migration20261202190000_list_item } from './Migration20261202190000_list_item';
 import { Migration20261202200000_sort_include } from './Migration20261202200000_sort_include';
+import { Migration20261202210000_token_changes } from './Migration20261202210000_token_changes';
 
 export const migrationsList: MigrationObject[] = [
 	{ name: 'Migration20261201224031_initial', class: Migration20261201224031_initial },
@@ -24,4 +25,5 @@ export const migrationsList: MigrationObject[] = [
 	{ name: 'Migration20261202170000_registry_changes', class: Migration20261202170000_registry_changes },
 	{ name: 'Migration20261202190000_list_item', class: Migration20261202190000_list_item },
 	{ name: 'Migration20261202200000_sort_include', class: Migration20261202200000_sort_include },
+	{ name: 'Migration20261202210000_token_changes', class: Migration20261202210000_token_changes },
 ];
