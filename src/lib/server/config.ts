@@ -39,8 +39,9 @@ export function s3Settings(): S3Settings {
 }
 
 /**
- * Does the web server keep loop counts until the registry changes (db/registry-changes.ts)?
- * HEADROOM_REGISTRY_CACHE=off makes every request count afresh (bench:web compares both).
+ * Does the web server keep loop counts, pages of the loop list and bearer tokens until the
+ * registry changes (db/registry-changes.ts)? HEADROOM_REGISTRY_CACHE=off makes every request
+ * read them afresh (bench:web compares both).
  */
 export function registryCacheEnabled(): boolean {
 	return process.env.HEADROOM_REGISTRY_CACHE !== 'off';
