@@ -10,7 +10,7 @@ import {
 	sampledPhaseSeries
 } from './crossover-polys';
 import { gainPolyU, phasePolyU, shiftTo, thetaFromU } from './shifted';
-import { maxAbs, rootBound, type Poly } from './polynomial';
+import { maxAbs, rootBound, toPoly, type Poly } from './polynomial';
 import type { ContinuousEval, LoopEval } from './rational-eval';
 import { chebyshevRealRoots } from './chebyshev';
 import { polyRoots, type Roots } from './roots';
@@ -192,9 +192,15 @@ export interface RationalCrossings {
 	phase: Crossing[];
 }
 
+/** 2·|p_(n−1)/p_n|: rootBound's first term, so never more than rootBound(p). */
+function firstBoundTerm(p: Poly): number {
+	const n = p.length - 1;
+	return n >= 1 ? 2 * Math.abs(p[n - 1] / p[n]) : 0;
+}
+
 export function continuousCrossings(ev: ContinuousEval): RationalCrossings {
-	const n = Array.from(ev.num);
-	const d = Array.from(ev.den);
+	const n = toPoly(ev.num);
+	const d = toPoly(ev.den);
 	const g = ev.gain;
 	const scale = g * g * maxAbs(n) ** 2 + maxAbs(d) ** 2;
 	const G = continuousGainPoly(n, d, g);
@@ -217,8 +223,14 @@ export function continuousCrossings(ev: ContinuousEval): RationalCrossings {
 	if (phase.length) {
 		// far beyond every root the phase only creeps towards its asymptote; a "crossing" out
 		// there is that asymptote (−180°, relative degree 2) touched by rounding
-		const beyond = 1e4 * w0 * Math.max(rootBound(n), rootBound(d));
-		phase = phase.filter((c) => beyond === 0 || c.f <= beyond);
+		// the bound's first term alone clears the usual case without its roots of coefficients
+		let last = 0;
+		for (const c of phase) last = Math.max(last, c.f);
+		const first = 1e4 * w0 * Math.max(firstBoundTerm(n), firstBoundTerm(d));
+		if (!(first > 0 && last <= first)) {
+			const beyond = 1e4 * w0 * Math.max(rootBound(n), rootBound(d));
+			phase = phase.filter((c) => beyond === 0 || c.f <= beyond);
+		}
 	}
 	const l0 = ev.atZero();
 	if (Number.isFinite(l0) && l0 < 0) phase.unshift({ f: 0, re: l0, im: 0 });

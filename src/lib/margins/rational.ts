@@ -109,7 +109,7 @@ export function evaluate(ev: LoopEval, grid: number[]): GridValues {
 	const re = new Float64Array(grid.length);
 	const im = new Float64Array(grid.length);
 	for (let i = 0; i < grid.length; i++) {
-		ev.at(grid[i]);
+		ev.value(grid[i]);
 		re[i] = ev.re;
 		im[i] = ev.im;
 	}

@@ -324,7 +324,10 @@ function realPairs(re: Float64Array, im: Float64Array, n: number): boolean {
 		for (let j = i + 1; j < n; j++) {
 			if (taken[j] || im[j] === 0 || im[j] > 0 === im[i] > 0) continue;
 			const d = hypot(re[j] - re[i], im[j] + im[i]);
-			if (d < bestD) [best, bestD] = [j, d];
+			if (d < bestD) {
+				best = j;
+				bestD = d;
+			}
 		}
 		if (best < 0 || bestD > 1e-10 * hypot(re[i], im[i])) return false;
 		taken[i] = taken[best] = 1;
@@ -354,7 +357,10 @@ function pairConjugates(r: Roots): Roots {
 		for (let j = i + 1; j < n; j++) {
 			if (used[j]) continue;
 			const d = hypot(r.re[j] - r.re[i], r.im[j] + r.im[i]);
-			if (d < bestD) [best, bestD] = [j, d];
+			if (d < bestD) {
+				best = j;
+				bestD = d;
+			}
 		}
 		used[i] = 1;
 		if (best >= 0 && bestD <= 1e-6 * scale) {

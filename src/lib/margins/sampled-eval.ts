@@ -20,6 +20,17 @@ function exactOnes(r: Roots): number {
 	return n;
 }
 
+/** min |(e^{jθ} − 1) + (1 − r)|² over the roots r, from their stored offsets. */
+function nearest(er: number, ei: number, offRe: Float64Array, negIm: Float64Array): number {
+	let best = Infinity;
+	for (let i = 0; i < offRe.length; i++) {
+		const fr = er + offRe[i];
+		const fi = ei + negIm[i];
+		best = Math.min(best, fr * fr + fi * fi);
+	}
+	return best;
+}
+
 export class SampledEval {
 	readonly sampled = true;
 	readonly lead: number;
@@ -61,8 +72,6 @@ export class SampledEval {
 		let li = 0;
 		let sr = 0;
 		let si = 0;
-		let nearest = Infinity;
-		let nearestZero = Infinity;
 		const nz = this.zr.length;
 		const np = this.pr.length;
 		const n = Math.max(nz, np);
@@ -71,7 +80,6 @@ export class SampledEval {
 			if (i < nz) {
 				const fr = er + this.zr[i];
 				const fi = ei + this.zi[i];
-				nearestZero = Math.min(nearestZero, fr * fr + fi * fi);
 				const t = lr * fr - li * fi;
 				li = lr * fi + li * fr;
 				lr = t;
@@ -85,7 +93,6 @@ export class SampledEval {
 				const fr = er + this.pr[i];
 				const fi = ei + this.pi[i];
 				const d = fr * fr + fi * fi;
-				nearest = Math.min(nearest, d);
 				// one division per pole, not two (four with the slope): divisions are the loop's cost
 				const inv = 1 / d;
 				const t = (lr * fr + li * fi) * inv;
@@ -99,8 +106,6 @@ export class SampledEval {
 		}
 		this.re = lr;
 		this.im = li;
-		this.denRelative = Math.sqrt(nearest);
-		this.numRelative = Math.sqrt(nearestZero);
 		if (slope) {
 			// d/dθ ln(e^{jθ} − r) = j e^{jθ} / (e^{jθ} − r)
 			const cr = -ei;
@@ -110,8 +115,26 @@ export class SampledEval {
 		}
 	}
 
+	/** L, and the distances to the nearest pole and zero (denRelative, numRelative). */
 	at(theta: number): void {
 		this.run(theta, false);
+		this.distances(theta);
+	}
+
+	/**
+	 * L alone (re and im, the same bits as at()): what the grid and the sensitivity search need.
+	 * The distances to the roots, which only the crossover checks read, cost a quarter of at().
+	 */
+	value(theta: number): void {
+		this.run(theta, false);
+	}
+
+	private distances(theta: number): void {
+		const s = Math.sin(0.5 * theta);
+		const er = -2 * s * s;
+		const ei = theta === Math.PI ? 0 : Math.sin(theta);
+		this.denRelative = Math.sqrt(nearest(er, ei, this.pr, this.pi));
+		this.numRelative = Math.sqrt(nearest(er, ei, this.zr, this.zi));
 	}
 
 	withSlope(theta: number): void {

@@ -9,6 +9,8 @@ import { sortSmall } from './small-sort';
 
 export interface PointEval {
 	at(f: number): void;
+	/** re and im alone, as at() sets them, where an evaluator has a leaner way to them. */
+	value?(f: number): void;
 	re: number;
 	im: number;
 }
@@ -77,13 +79,25 @@ export function sensitivity(
 	for (const e of ends) {
 		const m = modulusOf(e.re, e.im);
 		const h = halfOf(e.re, e.im);
-		if (m < bestMod) [bestMod, bestModF] = [m, e.f];
-		if (h > bestHalf) [bestHalf, bestHalfF] = [h, e.f];
+		if (m < bestMod) {
+			bestMod = m;
+			bestModF = e.f;
+		}
+		if (h > bestHalf) {
+			bestHalf = h;
+			bestHalfF = e.f;
+		}
 	}
 	const [m, mf] = refineExtrema(ev, grid, mod, 1, modulusOf, refine, within);
-	if (m < bestMod) [bestMod, bestModF] = [m, mf];
+	if (m < bestMod) {
+		bestMod = m;
+		bestModF = mf;
+	}
 	const [h, hf] = refineExtrema(ev, grid, half, -1, halfOf, refine, within);
-	if (h > bestHalf) [bestHalf, bestHalfF] = [h, hf];
+	if (h > bestHalf) {
+		bestHalf = h;
+		bestHalfF = hf;
+	}
 	return {
 		modulus: Math.sqrt(bestMod),
 		modulusF: bestModF,
@@ -99,7 +113,8 @@ function objective(
 	of: (re: number, im: number) => number,
 	x: number
 ): number {
-	ev.at(Math.exp(x));
+	if (ev.value) ev.value(Math.exp(x));
+	else ev.at(Math.exp(x));
 	const y = sign * of(ev.re, ev.im);
 	return Number.isNaN(y) ? Infinity : y;
 }
@@ -127,7 +142,10 @@ function refineExtrema(
 		: 0;
 	for (const i of found) {
 		if (i !== found[0] && sign * vals[i] > limit) continue;
-		if (sign * vals[i] < best) [best, bestF] = [sign * vals[i], grid[i]];
+		if (sign * vals[i] < best) {
+			best = sign * vals[i];
+			bestF = grid[i];
+		}
 		const a = Math.log(grid[Math.max(0, i - 1)]);
 		const b = Math.log(grid[Math.min(n - 1, i + 1)]);
 		if (!(b > a)) continue;
@@ -157,7 +175,10 @@ function refineExtrema(
 			const [fa, fb] = i === 0 ? [end, other] : [other, end];
 			[u, v] = parabolicMin((x) => objective(ev, sign, of, x), a, fa, g, probe, b, fb, REFINE_TOL);
 		}
-		if (v < best) [best, bestF] = [v, Math.exp(u)];
+		if (v < best) {
+			best = v;
+			bestF = Math.exp(u);
+		}
 	}
 	return [sign * best, bestF];
 }
