@@ -10,7 +10,7 @@ import {
 	sampledPhaseSeries
 } from './crossover-polys';
 import { gainPolyU, phasePolyU, shiftTo, thetaFromU } from './shifted';
-import { maxAbs, rootBound, toPoly, type Poly } from './polynomial';
+import { maxAbs, rootBound, sumAbs, toPoly, type Poly } from './polynomial';
 import type { ContinuousEval, LoopEval } from './rational-eval';
 import { chebyshevRealRoots } from './chebyshev';
 import { polyRoots, type Roots } from './roots';
@@ -61,6 +61,10 @@ function searchedRoots(
 	return x === null ? polyRoots(p) : { re: Float64Array.of(x), im: Float64Array.of(0) };
 }
 
+function pushIn(out: number[], c: number, lo: number, hi: number): void {
+	if (c >= lo && c <= hi) out.push(c);
+}
+
 /**
  * Real parts of the roots in [lo, hi] that are real or nearly so. Two close real roots (a nearly
  * tangent crossing) can come out of rounding as a pair x ± iy: x − y and x + y are tried as well,
@@ -75,8 +79,12 @@ function nearRealIn(r: Roots | null, lo: number, hi: number): number[] {
 		if (y < 0) continue; // its conjugate stands for the pair
 		if (y > NEAR_REAL * Math.abs(x)) continue;
 		// beyond 1e-3 the pair is no tangency: its real part alone is worth a look
-		for (const c of y === 0 || y > 1e-3 * Math.abs(x) ? [x] : [x - y, x, x + y])
-			if (c >= lo && c <= hi) out.push(c);
+		if (y === 0 || y > 1e-3 * Math.abs(x)) pushIn(out, x, lo, hi);
+		else {
+			pushIn(out, x - y, lo, hi);
+			pushIn(out, x, lo, hi);
+			pushIn(out, x + y, lo, hi);
+		}
 	}
 	return out;
 }
@@ -244,8 +252,6 @@ const fromY = (y: number) => 2 * Math.asin(Math.sqrt(Math.min(2, Math.max(0, y))
 const fromU = (u: number) => Math.PI - fromY(u);
 /** θ = acos(x) without the loss of acos near x = ±1. */
 const fromX = (x: number) => (x >= 0 ? fromY(1 - x) : fromU(1 + x));
-
-const sumAbs = (p: Poly) => p.reduce((s, x) => s + Math.abs(x), 0);
 
 /**
  * Candidate θ of the gain (|L| = 1) and phase (L real) crossings of g·N/D on the unit circle:

@@ -18,11 +18,12 @@ const SURE = 1e-10;
 /** Sign changes of p's coefficients (zeros skipped); −1 when a sign is not sure. */
 export function signChanges(p: Poly): number {
 	let max = 0;
-	for (const c of p) max = Math.max(max, Math.abs(c));
+	for (let i = 0; i < p.length; i++) max = Math.max(max, Math.abs(p[i]));
 	if (max === 0) return -1;
 	let sign = 0;
 	let changes = 0;
-	for (const c of p) {
+	for (let i = 0; i < p.length; i++) {
+		const c = p[i];
 		if (c === 0) continue;
 		if (Math.abs(c) <= SURE * max) return -1;
 		const s = c > 0 ? 1 : -1;

@@ -84,7 +84,9 @@ export function sensitivityGrid(
 ) {
 	const features: Feature[] = [];
 	const freqs: number[] = [];
-	for (const [a, b] of poles) {
+	for (let i = 0; i < poles.length; i++) {
+		const a = poles[i][0];
+		const b = poles[i][1];
 		if (ev.sampled) {
 			// s·T = ln z
 			const decay = 0.5 * Math.log(a * a + b * b);
@@ -96,7 +98,8 @@ export function sensitivityGrid(
 			freqs.push(hypot(a, b));
 		}
 	}
-	for (const c of [...cross.gain, ...cross.phase]) freqs.push(c.f);
+	for (let i = 0; i < cross.gain.length; i++) freqs.push(cross.gain[i].f);
+	for (let i = 0; i < cross.phase.length; i++) freqs.push(cross.phase[i].f);
 	let [lo, hi] = band(freqs, 30, ev.sampled ? 0.1 : w0);
 	if (ev.sampled) {
 		hi = Math.PI;

@@ -10,7 +10,7 @@ import type { Factor } from './blocks';
 import { polyRoots, wRoots, zRoots, type Roots } from './roots';
 import type { CaseLoop, MeasuredData } from './loop';
 import { hypot } from './hypot';
-import { lowOrder, trim, type Poly } from './polynomial';
+import { lowOrder, sumAbs, trim, type Poly } from './polynomial';
 import { shiftTo } from './shifted';
 
 const LN10_20 = Math.LN10 / 20;
@@ -55,8 +55,7 @@ function shiftedRoots(z: Poly, w: Poly, zeros: boolean): Roots {
 	const k = lowOrder(z);
 	if (k === 0 || k >= z.length - 1) return wRoots(w, zeros);
 	// rounding is judged against the whole factor's coefficients, as without the split
-	let size = 0;
-	for (const c of w) size += Math.abs(c);
+	const size = sumAbs(w);
 	const rest = wRoots(trim(shiftTo(z.slice(k), 1)), zeros, size);
 	const n = rest.re.length;
 	const re = new Float64Array(n + k);

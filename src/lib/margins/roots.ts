@@ -9,7 +9,7 @@
 import numeric from 'numeric';
 import { aberth, certifiedAberth } from './aberth';
 import { hqr } from './hqr';
-import { lowOrder, trim, type Poly } from './polynomial';
+import { lowOrder, sumAbs, trim, type Poly } from './polynomial';
 import { shiftTo } from './shifted';
 import { hypot } from './hypot';
 
@@ -51,9 +51,7 @@ export function polyRoots(p: Poly): Roots {
  */
 export function zRoots(p: Poly, zeros = false): Roots {
 	const q = trim(p);
-	let size = 0;
-	for (const c of q) size += Math.abs(c);
-	return wRoots(shiftTo(q, 1), zeros, size);
+	return wRoots(shiftTo(q, 1), zeros, sumAbs(q));
 }
 
 /**
@@ -61,17 +59,13 @@ export function zRoots(p: Poly, zeros = false): Roots {
  * relative to). `zeros`: a numerator's zeros at z = −1 that rounding split into a cluster (a
  * Tustin map's, written out) are put back exactly, so that L is 0 at the Nyquist frequency.
  */
-export function wRoots(
-	a: Poly,
-	zeros = false,
-	size = a.reduce((s, x) => s + Math.abs(x), 0)
-): Roots {
+export function wRoots(a: Poly, zeros = false, size = sumAbs(a)): Roots {
 	const atOne = a[0] === 0 || Math.abs(a[0]) > 8 * Number.EPSILON * size ? 0 : 1;
 	let rest = trim(a);
 	let minusOnes = 0;
 	if (zeros) {
 		const v = shiftTo(rest, -2);
-		const scale = v.reduce((s, x) => s + Math.abs(x), 0);
+		const scale = sumAbs(v);
 		while (minusOnes < v.length - 1 && Math.abs(v[minusOnes]) <= 64 * Number.EPSILON * scale)
 			minusOnes++;
 		for (let k = 0; k < minusOnes; k++) rest = deflate(rest, -2);
