@@ -12,6 +12,7 @@
  */
 import { brentRoot } from './brent';
 import { evalReal, rootBound, type Poly } from './polynomial';
+import { filled } from './buffers';
 
 const SURE = 1e-10;
 
@@ -42,8 +43,8 @@ export function segmentSignChanges(p: Poly, B: number): number {
 	if (n < 1) return -1;
 	// q_j = Σ_{i ≤ j} p_i B^i C(n − i, j − i); the same sum over |terms| bounds its rounding
 	let power = 1;
-	const q = new Float64Array(n + 1);
-	const size = new Float64Array(n + 1);
+	const q = filled(n + 1);
+	const size = filled(n + 1);
 	for (let i = 0; i <= n; i++) {
 		const a = p[i] * power;
 		let binom = 1;

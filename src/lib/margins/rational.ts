@@ -22,6 +22,7 @@ import { SampledEval } from './sampled-eval';
 import { sensitivity, type EndPoint, type GridValues } from './sensitivity';
 import { continuousClosedLoop, sampledClosedLoop, type ClosedLoop } from './stability';
 import { hypot } from './hypot';
+import { filled } from './buffers';
 
 const PER_DECADE = 12;
 
@@ -109,8 +110,8 @@ export function sensitivityGrid(
 }
 
 export function evaluate(ev: LoopEval, grid: number[]): GridValues {
-	const re = new Float64Array(grid.length);
-	const im = new Float64Array(grid.length);
+	const re = filled(grid.length);
+	const im = filled(grid.length);
 	for (let i = 0; i < grid.length; i++) {
 		ev.value(grid[i]);
 		re[i] = ev.re;
@@ -138,7 +139,7 @@ export function safetyNet(
 ): void {
 	const n = grid.length;
 	// the sign of |L|² − 1 is all a bracket needs; logarithms only inside Brent
-	const lm = new Float64Array(n);
+	const lm = filled(n);
 	for (let i = 0; i < n; i++) lm[i] = re[i] * re[i] + im[i] * im[i] - 1;
 	// as in sampledCrossings: far below |L(θ = π/2)| a crossing is a zero on the circle, moved by rounding
 	let deep = 0;

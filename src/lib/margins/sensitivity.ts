@@ -6,6 +6,7 @@
  */
 import { parabolicMin } from './brent';
 import { sortSmall } from './small-sort';
+import { filled } from './buffers';
 
 export interface PointEval {
 	at(f: number): void;
@@ -45,8 +46,8 @@ const halfOf = (re: number, im: number) => {
 
 /** L on the grid, when the caller has it already. */
 export interface GridValues {
-	re: Float64Array;
-	im: Float64Array;
+	re: number[];
+	im: number[];
 }
 
 /**
@@ -61,8 +62,8 @@ export function sensitivity(
 	{ refine = 2, within = 1.2 } = {}
 ): Sensitivity {
 	const n = grid.length;
-	const mod = new Float64Array(n);
-	const half = new Float64Array(n);
+	const mod = filled(n);
+	const half = filled(n);
 	for (let i = 0; i < n; i++) {
 		if (!values) ev.at(grid[i]);
 		const re = values ? values.re[i] : ev.re;
@@ -127,7 +128,7 @@ function objective(
 function refineExtrema(
 	ev: PointEval,
 	grid: number[],
-	vals: Float64Array,
+	vals: number[],
 	sign: number,
 	of: (re: number, im: number) => number,
 	refine: number,
@@ -184,7 +185,7 @@ function refineExtrema(
 }
 
 /** Indices of the `count` smallest local minima of sign·values (band ends included). */
-function extrema(values: Float64Array, sign: number, count: number): number[] {
+function extrema(values: number[], sign: number, count: number): number[] {
 	const n = values.length;
 	const idx: number[] = [];
 	for (let i = 0; i < n; i++) {
