@@ -10,7 +10,7 @@ import {
 	sampledPhaseSeries
 } from './crossover-polys';
 import { gainPolyU, phasePolyU, shiftTo, thetaFromU } from './shifted';
-import { maxAbs, rootBound, sumAbs, toPoly, type Poly } from './polynomial';
+import { maxAbs, rootBound, sumAbs, type Poly } from './polynomial';
 import type { ContinuousEval, LoopEval } from './rational-eval';
 import { chebyshevRealRoots } from './chebyshev';
 import { polyRoots, type Roots } from './roots';
@@ -207,8 +207,8 @@ function firstBoundTerm(p: Poly): number {
 }
 
 export function continuousCrossings(ev: ContinuousEval): RationalCrossings {
-	const n = toPoly(ev.num);
-	const d = toPoly(ev.den);
+	const n = ev.num;
+	const d = ev.den;
 	const g = ev.gain;
 	const scale = g * g * maxAbs(n) ** 2 + maxAbs(d) ** 2;
 	const G = continuousGainPoly(n, d, g);

@@ -10,13 +10,6 @@ export function fromDescending(coefficients: readonly number[]): Poly {
 	return trim(coefficients.slice().reverse());
 }
 
-/** A plain array of typed-array coefficients (Array.from on a Float64Array is some 25× slower). */
-export function toPoly(x: ArrayLike<number>): Poly {
-	const out = new Array<number>(x.length);
-	for (let i = 0; i < x.length; i++) out[i] = x[i];
-	return out;
-}
-
 /** Drops exactly-zero highest coefficients; the zero polynomial becomes []. */
 export function trim(p: Poly): Poly {
 	let n = p.length;

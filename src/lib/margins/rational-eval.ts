@@ -27,8 +27,9 @@ export class ContinuousEval implements LoopEval {
 	readonly sampled = false;
 	/** Frequency scale: s = ω₀·x. */
 	readonly w0: number;
-	readonly num: Float64Array;
-	readonly den: Float64Array;
+	/** Plain arrays: above 8 coefficients a Float64Array costs an off-heap allocation (buffers.ts). */
+	readonly num: Poly;
+	readonly den: Poly;
 	readonly gain: number;
 	re = 0;
 	im = 0;
@@ -140,9 +141,9 @@ export class ContinuousEval implements LoopEval {
 	}
 }
 
-/** p / s as a typed array (Float64Array.from with a map function is several times slower). */
-function divided(p: Poly, s: number): Float64Array {
-	const out = new Float64Array(p.length);
+/** p / s. */
+function divided(p: Poly, s: number): Poly {
+	const out = new Array<number>(p.length);
 	for (let i = 0; i < p.length; i++) out[i] = p[i] / s;
 	return out;
 }

@@ -6,10 +6,19 @@
  */
 import type { Roots } from './roots';
 
-/** a + b·x for each x (Float64Array.from with a map function is several times slower). */
-function affine(x: Float64Array, a: number, b: number): Float64Array {
-	const out = new Float64Array(x.length);
+/**
+ * a + b·x for each x, as a plain array: above 8 roots a Float64Array costs an off-heap allocation
+ * (buffers.ts), and all four lists of the hot loop below share one element kind.
+ */
+function affine(x: Float64Array, a: number, b: number): number[] {
+	const out = new Array<number>(x.length);
 	for (let i = 0; i < x.length; i++) out[i] = a + b * x[i];
+	return out;
+}
+
+function copy(x: Float64Array): number[] {
+	const out = new Array<number>(x.length);
+	for (let i = 0; i < x.length; i++) out[i] = x[i];
 	return out;
 }
 
@@ -21,7 +30,7 @@ function exactOnes(r: Roots): number {
 }
 
 /** min |(e^{jθ} − 1) + (1 − r)|² over the roots r, from their stored offsets. */
-function nearest(er: number, ei: number, offRe: Float64Array, negIm: Float64Array): number {
+function nearest(er: number, ei: number, offRe: number[], negIm: number[]): number {
 	let best = Infinity;
 	for (let i = 0; i < offRe.length; i++) {
 		const fr = er + offRe[i];
@@ -34,10 +43,10 @@ function nearest(er: number, ei: number, offRe: Float64Array, negIm: Float64Arra
 export class SampledEval {
 	readonly sampled = true;
 	readonly lead: number;
-	private readonly zr: Float64Array;
-	private readonly zi: Float64Array;
-	private readonly pr: Float64Array;
-	private readonly pi: Float64Array;
+	private readonly zr: number[];
+	private readonly zi: number[];
+	private readonly pr: number[];
+	private readonly pi: number[];
 	re = 0;
 	im = 0;
 	/** d ln L / dθ: real part is the log-magnitude slope, imaginary part the phase slope. */
@@ -57,9 +66,9 @@ export class SampledEval {
 		this.onePoles = Math.max(exactOnes(poles), poles.atOne ?? 0);
 		this.oneZeros = Math.max(exactOnes(zeros), zeros.atOne ?? 0);
 		// stored as 1 − r so the factor needs no subtraction of nearly equal numbers
-		this.zr = zeros.offRe ?? affine(zeros.re, 1, -1);
+		this.zr = zeros.offRe ? copy(zeros.offRe) : affine(zeros.re, 1, -1);
 		this.zi = affine(zeros.im, 0, -1);
-		this.pr = poles.offRe ?? affine(poles.re, 1, -1);
+		this.pr = poles.offRe ? copy(poles.offRe) : affine(poles.re, 1, -1);
 		this.pi = affine(poles.im, 0, -1);
 	}
 

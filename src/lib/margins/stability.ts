@@ -3,7 +3,7 @@
  * D + k·g·N. Poles on the boundary (Re s = 0, |z| = 1, up to rounding) count as unstable: the
  * definition asks for Re < 0 / |z| < 1 strictly.
  */
-import { add, scale, toPoly, trim, type Poly } from './polynomial';
+import { add, scale, trim, type Poly } from './polynomial';
 import { shiftTo } from './shifted';
 import { hornerWithDerivative, type ContinuousEval } from './rational-eval';
 import { polyRoots } from './roots';
@@ -21,7 +21,7 @@ export interface ClosedLoop {
 
 /** A continuous loop, on the evaluator's scaled coefficients (s = ω₀·x). */
 export function continuousClosedLoop(ev: ContinuousEval, k: number): ClosedLoop {
-	const r = polyRoots(add(toPoly(ev.den), scale(toPoly(ev.num), k * ev.gain)));
+	const r = polyRoots(add(ev.den, scale(ev.num, k * ev.gain)));
 	let unstable = 0;
 	const poles: [number, number][] = [];
 	for (let i = 0; i < r.re.length; i++) {
