@@ -12,6 +12,7 @@ import { hqr } from './hqr';
 import { lowOrder, sumAbs, trim, type Poly } from './polynomial';
 import { shiftTo } from './shifted';
 import { hypot } from './hypot';
+import { typedParts } from './buffers';
 
 export interface Roots {
 	re: Float64Array;
@@ -30,8 +31,7 @@ export function polyRoots(p: Poly): Roots {
 	const atZero = lowOrder(full);
 	const q = atZero ? full.slice(atZero) : full;
 	const n = q.length - 1;
-	const re = new Float64Array(n + atZero);
-	const im = new Float64Array(n + atZero);
+	const [re, im] = typedParts(n + atZero, 2);
 	if (n === 1) re[0] = -q[0] / q[1];
 	else if (n === 2) quadratic(q, re, im);
 	else if (n > 2) {
@@ -72,9 +72,9 @@ export function wRoots(a: Poly, zeros = false, size = sumAbs(a)): Roots {
 	}
 	const w = polyRoots(rest);
 	const n = w.re.length + minusOnes;
-	const re = new Float64Array(n).fill(-1);
-	const im = new Float64Array(n);
-	const offRe = new Float64Array(n).fill(2);
+	const [re, im, offRe] = typedParts(n, 3);
+	re.fill(-1);
+	offRe.fill(2);
 	for (let i = 0; i < w.re.length; i++) {
 		re[i] = 1 + w.re[i];
 		im[i] = w.im[i];
