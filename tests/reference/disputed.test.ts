@@ -44,6 +44,30 @@ describe('disputed seeds, settled in 60 digits', () => {
 		expect(top.gainMarginDb).toBeCloseTo(-dB(L(top.hz * TWO_PI)), 6);
 	});
 
+	it('ZOH seed 702362: a close complex pair of zeros (0.04754 ± 2.2e-4j) is not split into two reals', () => {
+		// the order-8 block's fast pole pair aliases to 0.0479 ± 5.5e-4j; the zeros beside it once
+		// came out as two real ones, and every |L| 4e-4 too low (crossover 27.8829 Hz, 4e-4 off)
+		const loop = generateLoop(702362);
+		expect([loop.domain, loop.order, loop.representation]).toEqual(['zoh', 8, 'state-space']);
+		const c = caseOf(toLoopModel(loop));
+		// reference: direct evaluation of |L| at the frequency (60-digit partial fractions of the hold)
+		const L = preciseZoh(loop);
+		const excess = (hz: number) => abs(L(hz * TWO_PI)) - 1;
+		expect(c.gainCrossovers).toHaveLength(1);
+		const hz = c.gainCrossovers[0].hz;
+		let [lo, hi] = [hz * 0.99, hz * 1.01];
+		expect(excess(lo)).toBeGreaterThan(0);
+		expect(excess(hi)).toBeLessThan(0);
+		for (let i = 0; i < 50; i++) {
+			const mid = 0.5 * (lo + hi);
+			if (excess(mid) > 0) lo = mid;
+			else hi = mid;
+		}
+		expect(Math.abs(hz / lo - 1)).toBeLessThan(1e-6);
+		expect(Math.abs(excess(hz))).toBeLessThan(1e-9);
+		for (const p of c.phaseCrossovers) expect(p.gainMarginDb).toBeCloseTo(-dB(L(p.hz * TWO_PI)), 6);
+	});
+
 	// continuous seeds held at 1000× their highest crossover (properties.test.ts): the hold changes them
 	for (const [seed, order, T, expectHeld] of [
 		[600081, 2, 0.004772484833495654, 'PM −30.80° at 0.19591 Hz, not the continuous −4.19°'],

@@ -6,6 +6,7 @@
  * stalls QR).
  */
 import { hypot } from './hypot';
+import { filled } from './buffers';
 
 /** Roots of p (ascending, p[n] ≠ 0). Starts from `start` when given (e.g. rough QR roots). */
 export function aberth(
@@ -142,7 +143,7 @@ const TURN_SIN = Float64Array.from({ length: TURNS }, (_, m) => Math.sin((2 * Ma
  */
 function newtonPolygonStarts(p: readonly number[], re: Float64Array, im: Float64Array): void {
 	const n = p.length - 1;
-	const lg = new Float64Array(n + 1);
+	const lg = filled(n + 1);
 	for (let i = 0; i <= n; i++) lg[i] = p[i] === 0 ? -Infinity : Math.log(Math.abs(p[i]));
 	// the hull as a stack of indices
 	const hull = new Int32Array(n + 1);
@@ -196,8 +197,8 @@ export function certifiedAberth(p: readonly number[], re: Float64Array, im: Floa
 	newtonPolygonStarts(p, re, im);
 	const done = new Uint8Array(n);
 	// p at each root where it stopped, for the certificate
-	const valRe = new Float64Array(n);
-	const valIm = new Float64Array(n);
+	const valRe = filled(n);
+	const valIm = filled(n);
 	const tol = 4 * (n + 1) * EPS;
 	let left = n;
 	for (let sweep = 0; sweep < FAST_SWEEPS && left > 0; sweep++) {

@@ -117,15 +117,28 @@ function fmin(
 		}
 		const u = Math.abs(d) >= tol1 ? x + d : x + (d >= 0 ? tol1 : -tol1);
 		const fu = f(u);
+		// plain assignments, not [v, fv, …] = [w, fw, …]: V8 builds and walks an array for those
 		if (fu <= fx) {
 			if (u >= x) a = x;
 			else b = x;
-			[v, fv, w, fw, x, fx] = [w, fw, x, fx, u, fu];
+			v = w;
+			fv = fw;
+			w = x;
+			fw = fx;
+			x = u;
+			fx = fu;
 		} else {
 			if (u < x) a = u;
 			else b = u;
-			if (fu <= fw || w === x) [v, fv, w, fw] = [w, fw, u, fu];
-			else if (fu <= fv || v === x || v === w) [v, fv] = [u, fu];
+			if (fu <= fw || w === x) {
+				v = w;
+				fv = fw;
+				w = u;
+				fw = fu;
+			} else if (fu <= fv || v === x || v === w) {
+				v = u;
+				fv = fu;
+			}
 		}
 	}
 	return [x, fx];

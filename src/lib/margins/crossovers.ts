@@ -10,7 +10,7 @@ import {
 	sampledPhaseSeries
 } from './crossover-polys';
 import { gainPolyU, phasePolyU, shiftTo, thetaFromU } from './shifted';
-import { maxAbs, rootBound, type Poly } from './polynomial';
+import { maxAbs, rootBound, sumAbs, type Poly } from './polynomial';
 import type { ContinuousEval, LoopEval } from './rational-eval';
 import { chebyshevRealRoots } from './chebyshev';
 import { polyRoots, type Roots } from './roots';
@@ -61,6 +61,10 @@ function searchedRoots(
 	return x === null ? polyRoots(p) : { re: Float64Array.of(x), im: Float64Array.of(0) };
 }
 
+function pushIn(out: number[], c: number, lo: number, hi: number): void {
+	if (c >= lo && c <= hi) out.push(c);
+}
+
 /**
  * Real parts of the roots in [lo, hi] that are real or nearly so. Two close real roots (a nearly
  * tangent crossing) can come out of rounding as a pair x ± iy: x − y and x + y are tried as well,
@@ -75,8 +79,12 @@ function nearRealIn(r: Roots | null, lo: number, hi: number): number[] {
 		if (y < 0) continue; // its conjugate stands for the pair
 		if (y > NEAR_REAL * Math.abs(x)) continue;
 		// beyond 1e-3 the pair is no tangency: its real part alone is worth a look
-		for (const c of y === 0 || y > 1e-3 * Math.abs(x) ? [x] : [x - y, x, x + y])
-			if (c >= lo && c <= hi) out.push(c);
+		if (y === 0 || y > 1e-3 * Math.abs(x)) pushIn(out, x, lo, hi);
+		else {
+			pushIn(out, x - y, lo, hi);
+			pushIn(out, x, lo, hi);
+			pushIn(out, x + y, lo, hi);
+		}
 	}
 	return out;
 }
@@ -192,9 +200,15 @@ export interface RationalCrossings {
 	phase: Crossing[];
 }
 
+/** 2·|p_(n−1)/p_n|: rootBound's first term, so never more than rootBound(p). */
+function firstBoundTerm(p: Poly): number {
+	const n = p.length - 1;
+	return n >= 1 ? 2 * Math.abs(p[n - 1] / p[n]) : 0;
+}
+
 export function continuousCrossings(ev: ContinuousEval): RationalCrossings {
-	const n = Array.from(ev.num);
-	const d = Array.from(ev.den);
+	const n = ev.num;
+	const d = ev.den;
 	const g = ev.gain;
 	const scale = g * g * maxAbs(n) ** 2 + maxAbs(d) ** 2;
 	const G = continuousGainPoly(n, d, g);
@@ -217,8 +231,14 @@ export function continuousCrossings(ev: ContinuousEval): RationalCrossings {
 	if (phase.length) {
 		// far beyond every root the phase only creeps towards its asymptote; a "crossing" out
 		// there is that asymptote (−180°, relative degree 2) touched by rounding
-		const beyond = 1e4 * w0 * Math.max(rootBound(n), rootBound(d));
-		phase = phase.filter((c) => beyond === 0 || c.f <= beyond);
+		// the bound's first term alone clears the usual case without its roots of coefficients
+		let last = 0;
+		for (const c of phase) last = Math.max(last, c.f);
+		const first = 1e4 * w0 * Math.max(firstBoundTerm(n), firstBoundTerm(d));
+		if (!(first > 0 && last <= first)) {
+			const beyond = 1e4 * w0 * Math.max(rootBound(n), rootBound(d));
+			phase = phase.filter((c) => beyond === 0 || c.f <= beyond);
+		}
 	}
 	const l0 = ev.atZero();
 	if (Number.isFinite(l0) && l0 < 0) phase.unshift({ f: 0, re: l0, im: 0 });
@@ -232,8 +252,6 @@ const fromY = (y: number) => 2 * Math.asin(Math.sqrt(Math.min(2, Math.max(0, y))
 const fromU = (u: number) => Math.PI - fromY(u);
 /** θ = acos(x) without the loss of acos near x = ±1. */
 const fromX = (x: number) => (x >= 0 ? fromY(1 - x) : fromU(1 + x));
-
-const sumAbs = (p: Poly) => p.reduce((s, x) => s + Math.abs(x), 0);
 
 /**
  * Candidate θ of the gain (|L| = 1) and phase (L real) crossings of g·N/D on the unit circle:

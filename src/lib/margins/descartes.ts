@@ -12,17 +12,19 @@
  */
 import { brentRoot } from './brent';
 import { evalReal, rootBound, type Poly } from './polynomial';
+import { filled } from './buffers';
 
 const SURE = 1e-10;
 
 /** Sign changes of p's coefficients (zeros skipped); −1 when a sign is not sure. */
 export function signChanges(p: Poly): number {
 	let max = 0;
-	for (const c of p) max = Math.max(max, Math.abs(c));
+	for (let i = 0; i < p.length; i++) max = Math.max(max, Math.abs(p[i]));
 	if (max === 0) return -1;
 	let sign = 0;
 	let changes = 0;
-	for (const c of p) {
+	for (let i = 0; i < p.length; i++) {
+		const c = p[i];
 		if (c === 0) continue;
 		if (Math.abs(c) <= SURE * max) return -1;
 		const s = c > 0 ? 1 : -1;
@@ -41,8 +43,8 @@ export function segmentSignChanges(p: Poly, B: number): number {
 	if (n < 1) return -1;
 	// q_j = Σ_{i ≤ j} p_i B^i C(n − i, j − i); the same sum over |terms| bounds its rounding
 	let power = 1;
-	const q = new Float64Array(n + 1);
-	const size = new Float64Array(n + 1);
+	const q = filled(n + 1);
+	const size = filled(n + 1);
 	for (let i = 0; i <= n; i++) {
 		const a = p[i] * power;
 		let binom = 1;

@@ -3,7 +3,7 @@
  * a lightly damped root makes the response change within a fraction of its frequency.
  */
 import { hypot } from './hypot';
-import { sortSmall } from './small-sort';
+import { sortNumbers } from './small-sort';
 
 export function logGrid(lo: number, hi: number, perDecade: number): number[] {
 	if (!(hi > lo) || !(lo > 0)) return [lo];
@@ -36,17 +36,18 @@ export function withFeatures(
 	const add: number[] = [];
 	for (const { centre, decay } of features) {
 		if (!(centre > 0) || Math.abs(decay) >= LIGHT_DAMPING * hypot(centre, decay)) continue;
-		for (const t of OFFSETS) {
-			const f = centre + Math.abs(decay) * t;
+		for (let k = 0; k < OFFSETS.length; k++) {
+			const f = centre + Math.abs(decay) * OFFSETS[k];
 			if (f >= lo && f <= hi) add.push(f);
 		}
 	}
-	for (const f of extra) if (f >= lo && f <= hi) add.push(f);
+	for (let k = 0; k < extra.length; k++) if (extra[k] >= lo && extra[k] <= hi) add.push(extra[k]);
 	if (add.length === 0) return grid;
-	const sorted = sortSmall(add, (a, b) => a - b);
+	const sorted = sortNumbers(add);
 	const out: number[] = [];
 	let j = 0;
-	for (const g of grid) {
+	for (let k = 0; k < grid.length; k++) {
+		const g = grid[k];
 		while (j < sorted.length && sorted[j] < g) pushDistinct(out, sorted[j++]);
 		pushDistinct(out, g);
 	}

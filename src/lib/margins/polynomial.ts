@@ -117,10 +117,19 @@ export function rootBound(p: Poly): number {
 	return 2 * bound;
 }
 
+/** Σ|p_i|, summed in order. */
+export function sumAbs(p: ArrayLike<number>): number {
+	let s = 0;
+	for (let i = 0; i < p.length; i++) s += Math.abs(p[i]);
+	return s;
+}
+
 /** Largest |coefficient|, for scale-aware tolerances. */
 export function maxAbs(p: Poly): number {
 	let m = 0;
-	for (const c of p) m = Math.max(m, Math.abs(c));
+	// indexed, not for…of: the arrays here come in several element kinds, and for…of over a
+	// polymorphic site costs several times as much
+	for (let i = 0; i < p.length; i++) m = Math.max(m, Math.abs(p[i]));
 	return m;
 }
 

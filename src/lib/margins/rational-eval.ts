@@ -17,6 +17,8 @@ export interface LoopEval {
 	/** The same for N: near 0 on an open-loop zero (where L = 0 is not "real and negative"). */
 	numRelative: number;
 	at(f: number): void;
+	/** re and im alone, as at() sets them. */
+	value(f: number): void;
 	withSlope(f: number): void;
 	atZero(): number;
 }
@@ -25,8 +27,9 @@ export class ContinuousEval implements LoopEval {
 	readonly sampled = false;
 	/** Frequency scale: s = ω₀·x. */
 	readonly w0: number;
-	readonly num: Float64Array;
-	readonly den: Float64Array;
+	/** Plain arrays: above 8 coefficients a Float64Array costs an off-heap allocation (buffers.ts). */
+	readonly num: Poly;
+	readonly den: Poly;
 	readonly gain: number;
 	re = 0;
 	im = 0;
@@ -53,34 +56,51 @@ export class ContinuousEval implements LoopEval {
 		this.gain = (gain * sn) / sd;
 	}
 
-	/** Sets re, im to L at ω = f. */
+	/** Sets re, im to L at ω = f, and denRelative, numRelative. */
 	at(f: number): void {
+		this.value(f);
+		// the scales Σ|p_i||x|^i of Horner's rounding, for the relative sizes of N and D
+		const ax = Math.abs(f / this.w0);
+		let scaleN = 0;
+		for (let i = this.num.length - 1; i >= 0; i--) scaleN = scaleN * ax + Math.abs(this.num[i]);
+		let scaleD = 0;
+		for (let i = this.den.length - 1; i >= 0; i--) scaleD = scaleD * ax + Math.abs(this.den[i]);
+		const { nr, ni, dr, di } = this;
+		this.denRelative = scaleD > 0 ? Math.sqrt(dr * dr + di * di) / scaleD : 0;
+		this.numRelative = scaleN > 0 ? hypot(nr, ni) / scaleN : 0;
+	}
+
+	/** N(jx) and D(jx) at the last value(), for at(). */
+	private nr = 0;
+	private ni = 0;
+	private dr = 0;
+	private di = 0;
+
+	/** L alone (re and im, the same bits as at()): what the grid and the sensitivity search need. */
+	value(f: number): void {
 		const x = f / this.w0;
 		const n = this.num;
 		const d = this.den;
 		// Horner at the imaginary point jx: (a + jb)·jx = −bx + jax
 		let nr = 0;
 		let ni = 0;
-		let scaleN = 0;
-		const ax = Math.abs(x);
 		for (let i = n.length - 1; i >= 0; i--) {
 			const t = n[i] - ni * x;
 			ni = nr * x;
 			nr = t;
-			scaleN = scaleN * ax + Math.abs(n[i]);
 		}
 		let dr = 0;
 		let di = 0;
-		let scaleD = 0;
 		for (let i = d.length - 1; i >= 0; i--) {
 			const t = d[i] - di * x;
 			di = dr * x;
 			dr = t;
-			scaleD = scaleD * ax + Math.abs(d[i]);
 		}
+		this.nr = nr;
+		this.ni = ni;
+		this.dr = dr;
+		this.di = di;
 		const dd = dr * dr + di * di;
-		this.denRelative = scaleD > 0 ? Math.sqrt(dd) / scaleD : 0;
-		this.numRelative = scaleN > 0 ? hypot(nr, ni) / scaleN : 0;
 		const g = this.gain / dd;
 		this.re = g * (nr * dr + ni * di);
 		this.im = g * (ni * dr - nr * di);
@@ -121,9 +141,9 @@ export class ContinuousEval implements LoopEval {
 	}
 }
 
-/** p / s as a typed array (Float64Array.from with a map function is several times slower). */
-function divided(p: Poly, s: number): Float64Array {
-	const out = new Float64Array(p.length);
+/** p / s. */
+function divided(p: Poly, s: number): Poly {
+	const out = new Array<number>(p.length);
 	for (let i = 0; i < p.length; i++) out[i] = p[i] / s;
 	return out;
 }

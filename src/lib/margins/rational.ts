@@ -22,6 +22,7 @@ import { SampledEval } from './sampled-eval';
 import { sensitivity, type EndPoint, type GridValues } from './sensitivity';
 import { continuousClosedLoop, sampledClosedLoop, type ClosedLoop } from './stability';
 import { hypot } from './hypot';
+import { filled } from './buffers';
 
 const PER_DECADE = 12;
 
@@ -84,7 +85,9 @@ export function sensitivityGrid(
 ) {
 	const features: Feature[] = [];
 	const freqs: number[] = [];
-	for (const [a, b] of poles) {
+	for (let i = 0; i < poles.length; i++) {
+		const a = poles[i][0];
+		const b = poles[i][1];
 		if (ev.sampled) {
 			// s·T = ln z
 			const decay = 0.5 * Math.log(a * a + b * b);
@@ -96,7 +99,8 @@ export function sensitivityGrid(
 			freqs.push(hypot(a, b));
 		}
 	}
-	for (const c of [...cross.gain, ...cross.phase]) freqs.push(c.f);
+	for (let i = 0; i < cross.gain.length; i++) freqs.push(cross.gain[i].f);
+	for (let i = 0; i < cross.phase.length; i++) freqs.push(cross.phase[i].f);
 	let [lo, hi] = band(freqs, 30, ev.sampled ? 0.1 : w0);
 	if (ev.sampled) {
 		hi = Math.PI;
@@ -106,10 +110,10 @@ export function sensitivityGrid(
 }
 
 export function evaluate(ev: LoopEval, grid: number[]): GridValues {
-	const re = new Float64Array(grid.length);
-	const im = new Float64Array(grid.length);
+	const re = filled(grid.length);
+	const im = filled(grid.length);
 	for (let i = 0; i < grid.length; i++) {
-		ev.at(grid[i]);
+		ev.value(grid[i]);
 		re[i] = ev.re;
 		im[i] = ev.im;
 	}
@@ -135,7 +139,7 @@ export function safetyNet(
 ): void {
 	const n = grid.length;
 	// the sign of |L|² − 1 is all a bracket needs; logarithms only inside Brent
-	const lm = new Float64Array(n);
+	const lm = filled(n);
 	for (let i = 0; i < n; i++) lm[i] = re[i] * re[i] + im[i] * im[i] - 1;
 	// as in sampledCrossings: far below |L(θ = π/2)| a crossing is a zero on the circle, moved by rounding
 	let deep = 0;

@@ -16,6 +16,7 @@ import type { Poly } from './polynomial';
 import { hornerWithDerivative } from './rational-eval';
 import type { Roots } from './roots';
 import { hypot } from './hypot';
+import { typedParts } from './buffers';
 
 const EPS = 2.220446049250313e-16;
 const STEPS = 8;
@@ -90,5 +91,10 @@ export function reflectedRoots(minus: Poly, plus: Roots, degree: number, from = 
 	for (let i = 0; i < re.length; i++)
 		for (let j = i + 1; j < re.length; j++)
 			if (hypot(re[i] - re[j], im[i] - im[j]) <= radius[i] + radius[j]) return null;
-	return { re: Float64Array.from(re), im: Float64Array.from(im) };
+	const [outRe, outIm] = typedParts(re.length, 2);
+	for (let i = 0; i < re.length; i++) {
+		outRe[i] = re[i];
+		outIm[i] = im[i];
+	}
+	return { re: outRe, im: outIm };
 }

@@ -10,8 +10,9 @@ import type { Factor } from './blocks';
 import { polyRoots, wRoots, zRoots, type Roots } from './roots';
 import type { CaseLoop, MeasuredData } from './loop';
 import { hypot } from './hypot';
-import { lowOrder, trim, type Poly } from './polynomial';
+import { lowOrder, sumAbs, trim, type Poly } from './polynomial';
 import { shiftTo } from './shifted';
+import { typedParts } from './buffers';
 
 const LN10_20 = Math.LN10 / 20;
 const RAD = Math.PI / 180;
@@ -55,13 +56,11 @@ function shiftedRoots(z: Poly, w: Poly, zeros: boolean): Roots {
 	const k = lowOrder(z);
 	if (k === 0 || k >= z.length - 1) return wRoots(w, zeros);
 	// rounding is judged against the whole factor's coefficients, as without the split
-	let size = 0;
-	for (const c of w) size += Math.abs(c);
+	const size = sumAbs(w);
 	const rest = wRoots(trim(shiftTo(z.slice(k), 1)), zeros, size);
 	const n = rest.re.length;
-	const re = new Float64Array(n + k);
-	const im = new Float64Array(n + k);
-	const offRe = new Float64Array(n + k).fill(1);
+	const [re, im, offRe] = typedParts(n + k, 3);
+	offRe.fill(1);
 	re.set(rest.re);
 	im.set(rest.im);
 	if (rest.offRe) offRe.set(rest.offRe);
@@ -77,9 +76,7 @@ function collect(parts: Roots[]): Roots {
 		n += r.re.length;
 		atOne += r.atOne ?? 0;
 	}
-	const re = new Float64Array(n);
-	const im = new Float64Array(n);
-	const offRe = new Float64Array(n);
+	const [re, im, offRe] = typedParts(n, 3);
 	let o = 0;
 	for (const r of parts) {
 		re.set(r.re, o);

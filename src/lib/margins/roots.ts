@@ -9,9 +9,10 @@
 import numeric from 'numeric';
 import { aberth, certifiedAberth } from './aberth';
 import { hqr } from './hqr';
-import { lowOrder, trim, type Poly } from './polynomial';
+import { lowOrder, sumAbs, trim, type Poly } from './polynomial';
 import { shiftTo } from './shifted';
 import { hypot } from './hypot';
+import { typedParts } from './buffers';
 
 export interface Roots {
 	re: Float64Array;
@@ -30,8 +31,7 @@ export function polyRoots(p: Poly): Roots {
 	const atZero = lowOrder(full);
 	const q = atZero ? full.slice(atZero) : full;
 	const n = q.length - 1;
-	const re = new Float64Array(n + atZero);
-	const im = new Float64Array(n + atZero);
+	const [re, im] = typedParts(n + atZero, 2);
 	if (n === 1) re[0] = -q[0] / q[1];
 	else if (n === 2) quadratic(q, re, im);
 	else if (n > 2) {
@@ -51,9 +51,7 @@ export function polyRoots(p: Poly): Roots {
  */
 export function zRoots(p: Poly, zeros = false): Roots {
 	const q = trim(p);
-	let size = 0;
-	for (const c of q) size += Math.abs(c);
-	return wRoots(shiftTo(q, 1), zeros, size);
+	return wRoots(shiftTo(q, 1), zeros, sumAbs(q));
 }
 
 /**
@@ -61,26 +59,22 @@ export function zRoots(p: Poly, zeros = false): Roots {
  * relative to). `zeros`: a numerator's zeros at z = −1 that rounding split into a cluster (a
  * Tustin map's, written out) are put back exactly, so that L is 0 at the Nyquist frequency.
  */
-export function wRoots(
-	a: Poly,
-	zeros = false,
-	size = a.reduce((s, x) => s + Math.abs(x), 0)
-): Roots {
+export function wRoots(a: Poly, zeros = false, size = sumAbs(a)): Roots {
 	const atOne = a[0] === 0 || Math.abs(a[0]) > 8 * Number.EPSILON * size ? 0 : 1;
 	let rest = trim(a);
 	let minusOnes = 0;
 	if (zeros) {
 		const v = shiftTo(rest, -2);
-		const scale = v.reduce((s, x) => s + Math.abs(x), 0);
+		const scale = sumAbs(v);
 		while (minusOnes < v.length - 1 && Math.abs(v[minusOnes]) <= 64 * Number.EPSILON * scale)
 			minusOnes++;
 		for (let k = 0; k < minusOnes; k++) rest = deflate(rest, -2);
 	}
 	const w = polyRoots(rest);
 	const n = w.re.length + minusOnes;
-	const re = new Float64Array(n).fill(-1);
-	const im = new Float64Array(n);
-	const offRe = new Float64Array(n).fill(2);
+	const [re, im, offRe] = typedParts(n, 3);
+	re.fill(-1);
+	offRe.fill(2);
 	for (let i = 0; i < w.re.length; i++) {
 		re[i] = 1 + w.re[i];
 		im[i] = w.im[i];
@@ -324,7 +318,10 @@ function realPairs(re: Float64Array, im: Float64Array, n: number): boolean {
 		for (let j = i + 1; j < n; j++) {
 			if (taken[j] || im[j] === 0 || im[j] > 0 === im[i] > 0) continue;
 			const d = hypot(re[j] - re[i], im[j] + im[i]);
-			if (d < bestD) [best, bestD] = [j, d];
+			if (d < bestD) {
+				best = j;
+				bestD = d;
+			}
 		}
 		if (best < 0 || bestD > 1e-10 * hypot(re[i], im[i])) return false;
 		taken[i] = taken[best] = 1;
@@ -354,7 +351,10 @@ function pairConjugates(r: Roots): Roots {
 		for (let j = i + 1; j < n; j++) {
 			if (used[j]) continue;
 			const d = hypot(r.re[j] - r.re[i], r.im[j] + r.im[i]);
-			if (d < bestD) [best, bestD] = [j, d];
+			if (d < bestD) {
+				best = j;
+				bestD = d;
+			}
 		}
 		used[i] = 1;
 		if (best >= 0 && bestD <= 1e-6 * scale) {

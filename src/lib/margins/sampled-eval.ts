@@ -6,10 +6,19 @@
  */
 import type { Roots } from './roots';
 
-/** a + b·x for each x (Float64Array.from with a map function is several times slower). */
-function affine(x: Float64Array, a: number, b: number): Float64Array {
-	const out = new Float64Array(x.length);
+/**
+ * a + b·x for each x, as a plain array: above 8 roots a Float64Array costs an off-heap allocation
+ * (buffers.ts), and all four lists of the hot loop below share one element kind.
+ */
+function affine(x: Float64Array, a: number, b: number): number[] {
+	const out = new Array<number>(x.length);
 	for (let i = 0; i < x.length; i++) out[i] = a + b * x[i];
+	return out;
+}
+
+function copy(x: Float64Array): number[] {
+	const out = new Array<number>(x.length);
+	for (let i = 0; i < x.length; i++) out[i] = x[i];
 	return out;
 }
 
@@ -20,13 +29,24 @@ function exactOnes(r: Roots): number {
 	return n;
 }
 
+/** min |(e^{jθ} − 1) + (1 − r)|² over the roots r, from their stored offsets. */
+function nearest(er: number, ei: number, offRe: number[], negIm: number[]): number {
+	let best = Infinity;
+	for (let i = 0; i < offRe.length; i++) {
+		const fr = er + offRe[i];
+		const fi = ei + negIm[i];
+		best = Math.min(best, fr * fr + fi * fi);
+	}
+	return best;
+}
+
 export class SampledEval {
 	readonly sampled = true;
 	readonly lead: number;
-	private readonly zr: Float64Array;
-	private readonly zi: Float64Array;
-	private readonly pr: Float64Array;
-	private readonly pi: Float64Array;
+	private readonly zr: number[];
+	private readonly zi: number[];
+	private readonly pr: number[];
+	private readonly pi: number[];
 	re = 0;
 	im = 0;
 	/** d ln L / dθ: real part is the log-magnitude slope, imaginary part the phase slope. */
@@ -46,9 +66,9 @@ export class SampledEval {
 		this.onePoles = Math.max(exactOnes(poles), poles.atOne ?? 0);
 		this.oneZeros = Math.max(exactOnes(zeros), zeros.atOne ?? 0);
 		// stored as 1 − r so the factor needs no subtraction of nearly equal numbers
-		this.zr = zeros.offRe ?? affine(zeros.re, 1, -1);
+		this.zr = zeros.offRe ? copy(zeros.offRe) : affine(zeros.re, 1, -1);
 		this.zi = affine(zeros.im, 0, -1);
-		this.pr = poles.offRe ?? affine(poles.re, 1, -1);
+		this.pr = poles.offRe ? copy(poles.offRe) : affine(poles.re, 1, -1);
 		this.pi = affine(poles.im, 0, -1);
 	}
 
@@ -61,8 +81,6 @@ export class SampledEval {
 		let li = 0;
 		let sr = 0;
 		let si = 0;
-		let nearest = Infinity;
-		let nearestZero = Infinity;
 		const nz = this.zr.length;
 		const np = this.pr.length;
 		const n = Math.max(nz, np);
@@ -71,7 +89,6 @@ export class SampledEval {
 			if (i < nz) {
 				const fr = er + this.zr[i];
 				const fi = ei + this.zi[i];
-				nearestZero = Math.min(nearestZero, fr * fr + fi * fi);
 				const t = lr * fr - li * fi;
 				li = lr * fi + li * fr;
 				lr = t;
@@ -85,7 +102,6 @@ export class SampledEval {
 				const fr = er + this.pr[i];
 				const fi = ei + this.pi[i];
 				const d = fr * fr + fi * fi;
-				nearest = Math.min(nearest, d);
 				// one division per pole, not two (four with the slope): divisions are the loop's cost
 				const inv = 1 / d;
 				const t = (lr * fr + li * fi) * inv;
@@ -99,8 +115,6 @@ export class SampledEval {
 		}
 		this.re = lr;
 		this.im = li;
-		this.denRelative = Math.sqrt(nearest);
-		this.numRelative = Math.sqrt(nearestZero);
 		if (slope) {
 			// d/dθ ln(e^{jθ} − r) = j e^{jθ} / (e^{jθ} − r)
 			const cr = -ei;
@@ -110,8 +124,26 @@ export class SampledEval {
 		}
 	}
 
+	/** L, and the distances to the nearest pole and zero (denRelative, numRelative). */
 	at(theta: number): void {
 		this.run(theta, false);
+		this.distances(theta);
+	}
+
+	/**
+	 * L alone (re and im, the same bits as at()): what the grid and the sensitivity search need.
+	 * The distances to the roots, which only the crossover checks read, cost a quarter of at().
+	 */
+	value(theta: number): void {
+		this.run(theta, false);
+	}
+
+	private distances(theta: number): void {
+		const s = Math.sin(0.5 * theta);
+		const er = -2 * s * s;
+		const ei = theta === Math.PI ? 0 : Math.sin(theta);
+		this.denRelative = Math.sqrt(nearest(er, ei, this.pr, this.pi));
+		this.numRelative = Math.sqrt(nearest(er, ei, this.zr, this.zi));
 	}
 
 	withSlope(theta: number): void {

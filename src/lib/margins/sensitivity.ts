@@ -6,9 +6,12 @@
  */
 import { parabolicMin } from './brent';
 import { sortSmall } from './small-sort';
+import { filled } from './buffers';
 
 export interface PointEval {
 	at(f: number): void;
+	/** re and im alone, as at() sets them, where an evaluator has a leaner way to them. */
+	value?(f: number): void;
 	re: number;
 	im: number;
 }
@@ -43,8 +46,8 @@ const halfOf = (re: number, im: number) => {
 
 /** L on the grid, when the caller has it already. */
 export interface GridValues {
-	re: Float64Array;
-	im: Float64Array;
+	re: number[];
+	im: number[];
 }
 
 /**
@@ -59,8 +62,8 @@ export function sensitivity(
 	{ refine = 2, within = 1.2 } = {}
 ): Sensitivity {
 	const n = grid.length;
-	const mod = new Float64Array(n);
-	const half = new Float64Array(n);
+	const mod = filled(n);
+	const half = filled(n);
 	for (let i = 0; i < n; i++) {
 		if (!values) ev.at(grid[i]);
 		const re = values ? values.re[i] : ev.re;
@@ -77,13 +80,25 @@ export function sensitivity(
 	for (const e of ends) {
 		const m = modulusOf(e.re, e.im);
 		const h = halfOf(e.re, e.im);
-		if (m < bestMod) [bestMod, bestModF] = [m, e.f];
-		if (h > bestHalf) [bestHalf, bestHalfF] = [h, e.f];
+		if (m < bestMod) {
+			bestMod = m;
+			bestModF = e.f;
+		}
+		if (h > bestHalf) {
+			bestHalf = h;
+			bestHalfF = e.f;
+		}
 	}
 	const [m, mf] = refineExtrema(ev, grid, mod, 1, modulusOf, refine, within);
-	if (m < bestMod) [bestMod, bestModF] = [m, mf];
+	if (m < bestMod) {
+		bestMod = m;
+		bestModF = mf;
+	}
 	const [h, hf] = refineExtrema(ev, grid, half, -1, halfOf, refine, within);
-	if (h > bestHalf) [bestHalf, bestHalfF] = [h, hf];
+	if (h > bestHalf) {
+		bestHalf = h;
+		bestHalfF = hf;
+	}
 	return {
 		modulus: Math.sqrt(bestMod),
 		modulusF: bestModF,
@@ -99,7 +114,8 @@ function objective(
 	of: (re: number, im: number) => number,
 	x: number
 ): number {
-	ev.at(Math.exp(x));
+	if (ev.value) ev.value(Math.exp(x));
+	else ev.at(Math.exp(x));
 	const y = sign * of(ev.re, ev.im);
 	return Number.isNaN(y) ? Infinity : y;
 }
@@ -112,7 +128,7 @@ function objective(
 function refineExtrema(
 	ev: PointEval,
 	grid: number[],
-	vals: Float64Array,
+	vals: number[],
 	sign: number,
 	of: (re: number, im: number) => number,
 	refine: number,
@@ -127,7 +143,10 @@ function refineExtrema(
 		: 0;
 	for (const i of found) {
 		if (i !== found[0] && sign * vals[i] > limit) continue;
-		if (sign * vals[i] < best) [best, bestF] = [sign * vals[i], grid[i]];
+		if (sign * vals[i] < best) {
+			best = sign * vals[i];
+			bestF = grid[i];
+		}
 		const a = Math.log(grid[Math.max(0, i - 1)]);
 		const b = Math.log(grid[Math.min(n - 1, i + 1)]);
 		if (!(b > a)) continue;
@@ -157,13 +176,16 @@ function refineExtrema(
 			const [fa, fb] = i === 0 ? [end, other] : [other, end];
 			[u, v] = parabolicMin((x) => objective(ev, sign, of, x), a, fa, g, probe, b, fb, REFINE_TOL);
 		}
-		if (v < best) [best, bestF] = [v, Math.exp(u)];
+		if (v < best) {
+			best = v;
+			bestF = Math.exp(u);
+		}
 	}
 	return [sign * best, bestF];
 }
 
 /** Indices of the `count` smallest local minima of sign·values (band ends included). */
-function extrema(values: Float64Array, sign: number, count: number): number[] {
+function extrema(values: number[], sign: number, count: number): number[] {
 	const n = values.length;
 	const idx: number[] = [];
 	for (let i = 0; i < n; i++) {

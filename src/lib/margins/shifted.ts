@@ -11,6 +11,7 @@
  *   Im(N·conj D) = sin θ · Σ_{i≠k} ± nᵢ d_k u^{min(i,k)} q_{|i−k|}(u),   q_m = (w^m − w̄^m)/(w − w̄).
  */
 import { trim, type Poly } from './polynomial';
+import { filled } from './buffers';
 
 /**
  * Coefficients of p(c + w) in powers of w (ascending), exact to rounding: repeated synthetic
@@ -20,7 +21,7 @@ import { trim, type Poly } from './polynomial';
 export function shiftTo(p: Poly, c: number): Poly {
 	const n = p.length;
 	const hi = p.slice();
-	const lo = new Float64Array(n);
+	const lo = filled(n);
 	for (let k = 0; k < n - 1; k++)
 		for (let i = n - 2; i >= k; i--) {
 			// twoSum(hi[i], c·hi[i + 1]) written out: no pair allocated in the O(n²) loop

@@ -17,3 +17,18 @@ export function sortSmall<T>(xs: T[], order: (a: T, b: T) => number): T[] {
 	}
 	return xs;
 }
+
+/** sortSmall ascending for numbers, the comparison written in: no comparator call per step. */
+export function sortNumbers(xs: number[]): number[] {
+	if (xs.length > 64) return xs.sort((a, b) => a - b);
+	for (let i = 1; i < xs.length; i++) {
+		const x = xs[i];
+		let j = i - 1;
+		while (j >= 0 && xs[j] - x > 0) {
+			xs[j + 1] = xs[j];
+			j--;
+		}
+		xs[j + 1] = x;
+	}
+	return xs;
+}

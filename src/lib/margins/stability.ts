@@ -21,7 +21,7 @@ export interface ClosedLoop {
 
 /** A continuous loop, on the evaluator's scaled coefficients (s = ω₀·x). */
 export function continuousClosedLoop(ev: ContinuousEval, k: number): ClosedLoop {
-	const r = polyRoots(add(Array.from(ev.den), scale(Array.from(ev.num), k * ev.gain)));
+	const r = polyRoots(add(ev.den, scale(ev.num, k * ev.gain)));
 	let unstable = 0;
 	const poles: [number, number][] = [];
 	for (let i = 0; i < r.re.length; i++) {
