@@ -130,6 +130,54 @@ describe('meetsRange against closed forms', () => {
 		);
 	});
 
+	it('two disjoint ranges: K(s/20+1)²/(s(s+1)²) with PM ≥ 45° meets for low gains and again for high ones', () => {
+		// Derivation (closed form, one crossover since |L| falls monotonically): the phase is
+		// −90° − 2·g(ω) with g(ω) = atan ω − atan(ω/20), so PM = 90° − 2g(ω_c) and PM ≥ 45° ⇔
+		// g(ω_c) ≤ 22.5°. g rises from 0 to its peak at ω = √20 (64.8°) and falls back to 0, so the
+		// gain crossover must lie below ω_a or above ω_b, the two roots of g = 22.5°. A crossover at ω
+		// takes the gain k = 1 / (K·|G(jω)|), |G(jω)| = (1 + ω²/400) / (ω(1 + ω²)). Past ω_b the loop
+		// is conditionally stable (the phase dips below −180° where |L| > 1 and comes back).
+		const K = 1000;
+		const g = (w: number) => Math.atan(w) - Math.atan(w / 20);
+		const root = (lo: number, hi: number) => {
+			const rising = g(lo) < g(hi);
+			for (let i = 0; i < 200; i++) {
+				const mid = Math.sqrt(lo * hi);
+				if (g(mid) < Math.PI / 8 === rising) lo = mid;
+				else hi = mid;
+			}
+			return Math.sqrt(lo * hi);
+		};
+		const wa = root(1e-3, Math.sqrt(20));
+		const wb = root(Math.sqrt(20), 1e4);
+		const gainAt = (w: number) => dB(1 / ((K * (1 + (w * w) / 400)) / (w * (1 + w * w))));
+		const m = model({ blocks: [poly([K / 400, K / 10, K], [1, 2, 1, 0])] });
+		const r = meetsRange(input(m, { minPhaseMarginDeg: '45' }), {
+			spanDb: 100,
+			toleranceDb: 0.001
+		});
+		expect(r.nominalMeets).toBe(false);
+		expect(r.intervals).toHaveLength(2);
+		expect(r.intervals[0].lowDb).toBeNull();
+		expect(r.intervals[0].highDb).toBeCloseTo(gainAt(wa), 2);
+		expect(r.intervals[1].lowDb).toBeCloseTo(gainAt(wb), 2);
+		expect(r.intervals[1].highDb).toBeNull();
+		// the nearer range is the one offered; the other is still mentioned
+		expect(r.interval).toEqual(r.intervals[1]);
+		expect(describeRange(r)).toBe(
+			`Does not meet its targets at nominal gain; it would from +${gainAt(wb).toFixed(1)} dB to beyond +100.0 dB (and 1 more range within −100.0 dB to +100.0 dB).`
+		);
+		// either side of each edge, and in the gap between the ranges
+		const at = (db: number) => whatIfAt(input(m, { minPhaseMarginDeg: '45' }), db);
+		expect(at(gainAt(wa) - 0.05).meets).toBe(true);
+		expect(at(gainAt(wa) + 0.05).meets).toBe(false);
+		expect(at(gainAt(wb) - 0.05).meets).toBe(false);
+		const high = at(gainAt(wb) + 0.05);
+		expect(high.meets).toBe(true);
+		expect(high.margins.worstCase.lowerGainMarginDb).not.toBeNull(); // conditionally stable
+		expect(at(0).judgement.verdict).toBe('unstable');
+	});
+
 	it('refuses a search without a span', () => {
 		const m = model({ blocks: [poly([10], [1, 0])] });
 		expect(() => meetsRange(input(m, {}), { spanDb: 0 })).toThrow(/must be > 0/);
