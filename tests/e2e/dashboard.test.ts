@@ -68,6 +68,8 @@ describe('compliance dashboard', () => {
 		const lines = readFileSync((await download.path())!, 'utf8').trim().split(/\r\n/);
 		expect(lines[0]).toMatch(/^loop_id,product,class,loop_key,/);
 		expect(lines.slice(1).map((l) => l.split(',')[3])).toEqual(expected.items.map((l: { key: string }) => l.key));
+		// and so does the report link: these loops, in this order
+		expect(await page.getByRole('link', { name: 'Compliance report…' }).getAttribute('href')).toBe(`/reports?class=${cls.key}&verdict=noncompliant&sort=phaseMargin&dir=asc`);
 
 		// Back restores the filtered view unsorted, then the unfiltered dashboard.
 		await page.goBack();

@@ -58,7 +58,7 @@ describe('compliance reports in the browser', () => {
 			expect(await page.getByTestId('reports-empty').innerText()).toMatch(/No reports yet/);
 
 		await page.goto(baseUrl() + '/reports?verdict=noncompliant&sort=key');
-		expect(await page.getByTestId('report-scope').innerText()).toBe('Non-compliant loops');
+		expect(await page.getByTestId('report-scope').innerText()).toBe('Non-compliant loops; sorted by loop key, ascending');
 		let reloads = 0;
 		page.on('framenavigated', () => reloads++);
 

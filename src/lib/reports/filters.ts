@@ -1,12 +1,22 @@
 /**
  * The filters a compliance report is cut by: the same names and meanings as GET /api/loops (and
- * the dashboard's URL), so "export what I am looking at" is the dashboard's query string. Pure:
- * shared by the API, the reports page (scope shown in words) and the render job.
+ * the dashboard's URL), so "export what I am looking at" is the dashboard's query string — its
+ * filters, which loops by archive state, and its order (`sort`, `dir`); only the paging is left
+ * out, since a report holds every loop the view selects. Pure: shared by the API, the reports
+ * page (scope shown in words) and the render job.
  */
 import { z } from 'zod';
 import { CRITERIA, CRITERION_LABELS, type Criterion } from '../compliance/criteria';
 import { VERDICTS, type Verdict } from '../compliance/judge';
 import { VERDICT_LABELS } from '../compliance/labels';
+import {
+	LOOP_ARCHIVED,
+	LOOP_DIRS,
+	LOOP_SORTS,
+	type LoopArchived,
+	type LoopDir,
+	type LoopSort
+} from '../registry/loop-filters';
 
 export const REPORT_FORMATS = ['pdf', 'csv'] as const;
 export type ReportFormat = (typeof REPORT_FORMATS)[number];
@@ -19,7 +29,10 @@ export const REPORT_FILTER_NAMES = [
 	'failing',
 	'tag',
 	'q',
-	'changedSince'
+	'changedSince',
+	'archived',
+	'sort',
+	'dir'
 ] as const;
 export type ReportFilterName = (typeof REPORT_FILTER_NAMES)[number];
 
@@ -36,6 +49,12 @@ export interface ReportFilters {
 	q?: string;
 	/** Loops whose verdict changed at or after this day or instant (ISO 8601). */
 	changedSince?: string;
+	/** Archived loops only, or all; absent: the loops not archived (`active`, dropped when parsed). */
+	archived?: LoopArchived;
+	/** The loops' order, as on the dashboard (absent: by loop key). */
+	sort?: LoopSort;
+	/** absent: ascending. */
+	dir?: LoopDir;
 }
 
 const text = (max: number) =>
@@ -67,13 +86,15 @@ const changedSince = z
 	.transform((v) => v || undefined)
 	.optional();
 
-const optionalEnum = <T extends readonly [string, ...string[]]>(values: T, what: string) =>
+/** One of `values`, '' meaning absent; a wrong value is refused with the list of right ones. */
+const optionalEnum = <T extends readonly [string, ...string[]]>(
+	values: T,
+	what: string,
+	absent: readonly string[] = []
+) =>
 	z
-		.union([
-			z.literal(''),
-			z.enum(values, { error: `${what} must be one of ${values.join(', ')}.` })
-		])
-		.transform((v) => (v === '' ? undefined : (v as T[number])))
+		.enum(['', ...values], { error: `${what} must be one of ${values.join(', ')}.` })
+		.transform((v) => (v === '' || absent.includes(v) ? undefined : (v as T[number])))
 		.optional();
 
 /** Strict: an unknown filter name is refused (a typo would silently widen the report). */
@@ -85,7 +106,11 @@ export const reportFiltersSchema = z.strictObject({
 	failing: optionalEnum(CRITERIA, 'failing'),
 	tag: text(64),
 	q: text(200),
-	changedSince
+	changedSince,
+	// `active` is what no parameter means: dropped, so one view has one stored form
+	archived: optionalEnum(LOOP_ARCHIVED, 'archived', ['active']),
+	sort: optionalEnum(LOOP_SORTS, 'sort'),
+	dir: optionalEnum(LOOP_DIRS, 'dir')
 });
 
 export const reportRequestSchema = z.strictObject({
@@ -128,7 +153,10 @@ export function filtersToQuery(f: ReportFilters): URLSearchParams {
 /** The scope of a report in words: "Non-compliant loops of product tarn-s2, tagged axis-1". */
 export function scopeInWords(f: ReportFilters): string {
 	const c = cleanFilters(f);
-	const head = c.verdict ? `${VERDICT_LABELS[c.verdict]} loops` : 'All active loops';
+	const archived = c.archived === 'archived' ? 'archived ' : '';
+	const head = c.verdict
+		? `${VERDICT_LABELS[c.verdict]} ${archived}loops`
+		: `All ${c.archived ? archived : 'active '}loops`;
 	const parts: string[] = [];
 	if (c.product) parts.push(`of product ${c.product}`);
 	if (c.class) parts.push(`of class ${c.class}`);
@@ -137,5 +165,27 @@ export function scopeInWords(f: ReportFilters): string {
 	if (c.tag) parts.push(`tagged ${c.tag}`);
 	if (c.q) parts.push(`with “${c.q}” in key or name`);
 	if (c.changedSince) parts.push(`whose verdict changed since ${c.changedSince.replace('T', ' ')}`);
-	return parts.length ? `${head} ${parts.join(', ')}` : head;
+	let scope = parts.length ? `${head} ${parts.join(', ')}` : head;
+	if (c.archived === 'all') scope += ', archived ones included';
+	return c.sort || c.dir ? `${scope}; ${orderInWords(c)}` : scope;
+}
+
+const SORT_WORDS: Record<LoopSort, string> = {
+	key: 'loop key',
+	name: 'name',
+	product: 'product',
+	class: 'class',
+	owner: 'owner',
+	verdict: 'verdict',
+	updatedAt: 'last change',
+	phaseMargin: 'phase margin',
+	upperGainMargin: 'upper gain margin',
+	delayMargin: 'delay margin',
+	modulusMargin: 'modulus margin',
+	shortfall: 'shortfall'
+};
+
+/** "sorted by phase margin, descending" (loops without the figure last either way). */
+export function orderInWords(f: ReportFilters): string {
+	return `sorted by ${SORT_WORDS[f.sort ?? 'key']}, ${f.dir === 'desc' ? 'descending' : 'ascending'}`;
 }

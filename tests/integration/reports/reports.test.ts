@@ -16,10 +16,11 @@ import { uploadRevision } from '../../../src/lib/server/revisions/upload';
 import { getRevision } from '../../../src/lib/server/revisions/queries';
 import { createProduct } from '../../../src/lib/server/registry/products';
 import { createClass } from '../../../src/lib/server/registry/classes';
-import { createLoop } from '../../../src/lib/server/registry/loops';
-import type { Actor } from '../../../src/lib/server/registry/common';
+import { createLoop, updateLoop } from '../../../src/lib/server/registry/loops';
 import { CSV_COLUMNS } from '../../../src/lib/reports/csv';
+import { VERDICT_RANK } from '../../../src/lib/compliance/judge';
 import * as reports from '../../../src/routes/api/reports/+server';
+import { call, json } from './support';
 import * as report from '../../../src/routes/api/reports/[id]/+server';
 import * as file from '../../../src/routes/api/reports/[id]/file/+server';
 
@@ -42,38 +43,6 @@ const model = (k: number) =>
 /** Polls with the worker's output in the failure message. */
 const until = <T>(what: string, probe: () => Promise<T | undefined>) =>
 	waitUntil(what, probe, 45_000, () => worker?.log() ?? '');
-
-type Handler = (event: never) => Promise<Response>;
-type Who = Actor | null | { token: Actor; scopes: ('read' | 'upload')[] };
-
-async function call(
-	handler: Handler,
-	who: Who,
-	path: string,
-	params: Record<string, string> = {},
-	body?: unknown
-) {
-	const url = new URL(`http://headroom.test${path}`);
-	const user = who && 'token' in who ? who.token : who;
-	const scopes =
-		who && 'token' in who ? who.scopes : user?.role === 'viewer' ? ['read'] : ['read', 'upload'];
-	const init: RequestInit =
-		body === undefined
-			? { method: 'GET' }
-			: {
-					method: 'POST',
-					body: typeof body === 'string' ? body : JSON.stringify(body),
-					headers: { 'content-type': 'application/json' }
-				};
-	return handler({
-		url,
-		request: new Request(url, init),
-		params,
-		locals: { user, scopes: user ? scopes : [], requestId: 't' }
-	} as never);
-}
-
-const json = async (res: Response) => ({ status: res.status, body: await res.json() });
 
 async function settledReport(id: string, states = ['ready', 'failed']) {
 	return until(`report ${id} to be ${states.join(' or ')}`, async () => {
@@ -162,6 +131,8 @@ describe('report requests', () => {
 			[{ format: 'pdf', filters: { colour: 'red' } }, 'filters.colour'],
 			[{ format: 'pdf', filters: { verdict: 'splendid' } }, 'filters.verdict'],
 			[{ format: 'pdf', filters: { failing: 'vibes' } }, 'filters.failing'],
+			[{ format: 'pdf', filters: { sort: 'height' } }, 'filters.sort'],
+			[{ format: 'csv', filters: { archived: 'yes' } }, 'filters.archived'],
 			[{ format: 'csv', filters: { changedSince: 'yesterday' } }, 'filters.changedSince'],
 			[{ format: 'csv', filters: { product: 'no-such-product' } }, 'filters.product'],
 			[{ format: 'pdf', extra: 1 }, 'extra']
@@ -340,6 +311,50 @@ describe('CSV report', () => {
 		expect(all).toMatch(
 			/veld-s2,ax4-speed,"Axis 4 speed, not identified yet",speed,1,empty,,,[^,]+,,,,,,,,,,\r\n/
 		);
+	});
+	it('follows the view: its order, and archived loops only when asked', async () => {
+		const keysOf = async (filters: Record<string, string>) => {
+			const { done, bytes } = await exportReport('csv', filters);
+			const rows = new TextDecoder().decode(bytes).trimEnd().split('\r\n').slice(1);
+			return { done, keys: [...new Set(rows.map((l) => l.split(',')[1]))] };
+		};
+		const desc = await keysOf({ product: 'veld-s2', sort: 'key', dir: 'desc' });
+		expect(desc.keys).toEqual(['ax4-speed', 'ax3-speed', 'ax2-speed', 'ax1-speed']);
+		expect(desc.done.scope).toBe(
+			'All active loops of product veld-s2; sorted by loop key, descending'
+		);
+		// worst verdict first, ties by key (the dashboard's order)
+		const verdicts = {
+			'ax1-speed': 'noncompliant',
+			'ax2-speed': 'compliant',
+			'ax3-speed': 'unstable',
+			'ax4-speed': 'empty'
+		} as const;
+		const worstFirst = Object.keys(verdicts).sort(
+			(a, b) =>
+				VERDICT_RANK[verdicts[b as keyof typeof verdicts]] -
+					VERDICT_RANK[verdicts[a as keyof typeof verdicts]] || a.localeCompare(b)
+		);
+		expect((await keysOf({ product: 'veld-s2', sort: 'verdict', dir: 'desc' })).keys).toEqual(
+			worstFirst
+		);
+
+		await updateLoop(r.em(), r.users.lead, loops['rig-speed'].id, { archived: true });
+		try {
+			expect((await keysOf({ product: 'veld-broken' })).keys).toEqual([]);
+			const only = await keysOf({ product: 'veld-broken', archived: 'archived' });
+			expect(only.keys).toEqual(['rig-speed']);
+			expect(only.done.filters).toEqual({ product: 'veld-broken', archived: 'archived' });
+			const all = await keysOf({ product: 'veld-broken', archived: 'all' });
+			expect(all.keys).toEqual(['rig-speed']);
+			expect(all.done.scope).toBe('All loops of product veld-broken, archived ones included');
+			// the default is not stored: the same view has one form
+			expect((await keysOf({ product: 'veld-broken', archived: 'active' })).done.filters).toEqual({
+				product: 'veld-broken'
+			});
+		} finally {
+			await updateLoop(r.em(), r.users.lead, loops['rig-speed'].id, { archived: false });
+		}
 	});
 });
 

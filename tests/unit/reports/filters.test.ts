@@ -19,6 +19,17 @@ describe('report scope in words', () => {
 		expect(scopeInWords({})).toBe('All active loops');
 	});
 
+	it('says which loops by archive state, and their order', () => {
+		expect(scopeInWords({ archived: 'archived' })).toBe('All archived loops');
+		expect(scopeInWords({ verdict: 'unstable', archived: 'all' })).toBe(
+			'Unstable loops, archived ones included'
+		);
+		expect(scopeInWords({ class: 'speed', sort: 'phaseMargin' })).toBe(
+			'All active loops of class speed; sorted by phase margin, ascending'
+		);
+		expect(scopeInWords({ dir: 'desc' })).toBe('All active loops; sorted by loop key, descending');
+	});
+
 	it('reads every filter in a fixed order', () => {
 		expect(
 			scopeInWords({
@@ -74,10 +85,29 @@ describe('report filters', () => {
 		});
 	});
 
-	it('keep the valid part of a page link and ignore names that are not filters', () => {
+	it('keep the valid part of a page link and ignore the paging', () => {
 		expect(
-			filtersFromQuery(new URLSearchParams('verdict=nonsense&class=speed&page=3&sort=key'))
+			filtersFromQuery(
+				new URLSearchParams('verdict=nonsense&class=speed&page=3&pageSize=25&sort=height')
+			)
 		).toEqual({ class: 'speed' });
+	});
+
+	it('keep the view: archive state, sort and direction; archived=active is the default', () => {
+		const query = 'verdict=noncompliant&archived=all&sort=shortfall&dir=desc&page=2';
+		const f = filtersFromQuery(new URLSearchParams(query));
+		expect(f).toEqual({ verdict: 'noncompliant', archived: 'all', sort: 'shortfall', dir: 'desc' });
+		expect(filtersToQuery(f).toString()).toBe(
+			'verdict=noncompliant&archived=all&sort=shortfall&dir=desc'
+		);
+		expect(filtersFromQuery(new URLSearchParams('archived=active&q=ax'))).toEqual({ q: 'ax' });
+		const bad = reportRequestSchema.safeParse({ format: 'pdf', filters: { dir: 'up' } });
+		expect(bad.error?.issues[0].path).toEqual(['filters', 'dir']);
+		expect(bad.error?.issues[0].message).toBe('dir must be one of asc, desc.');
+		const archived = reportRequestSchema.safeParse({ format: 'pdf', filters: { archived: 'old' } });
+		expect(archived.error?.issues[0].message).toBe(
+			'archived must be one of active, archived, all.'
+		);
 	});
 });
 

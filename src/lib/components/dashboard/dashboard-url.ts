@@ -19,10 +19,10 @@ export function nextView(url: URL, changes: Record<string, string | null | undef
 	return `${next.pathname}${next.search}`;
 }
 
-/** Only the filters of a URL's query, e.g. for the report link ("the same loops"). */
-export function filterSearch(url: URL): string {
+/** The filters and the order of a URL's query, not the page: the report link ("these loops, in this order"). */
+export function viewSearch(url: URL): string {
 	const out = new URLSearchParams();
-	for (const k of FILTER_KEYS) {
+	for (const k of [...FILTER_KEYS, 'sort', 'dir']) {
 		const v = url.searchParams.get(k);
 		if (v) out.set(k, v);
 	}

@@ -8,6 +8,7 @@ import { CRITERIA, type Criterion } from '../../compliance/criteria';
 import { LOOP_SORTS, orderSql, SORT_KEYS, type LoopSort } from './loop-sort-keys';
 import { Invalid } from '../errors';
 import { isUuid } from './common';
+import { LOOP_ARCHIVED, LOOP_DIRS } from '../../registry/loop-filters';
 
 export { LOOP_SORTS, type LoopSort } from './loop-sort-keys';
 
@@ -63,9 +64,9 @@ export function loopFiltersFrom(params: URLSearchParams): LoopFilters {
 		failing: pick('failing', CRITERIA),
 		tag: text('tag'),
 		changedSince: since === undefined ? undefined : parseInstant(since, 'changedSince'),
-		archived: pick('archived', ['active', 'archived', 'all'] as const),
+		archived: pick('archived', LOOP_ARCHIVED),
 		sort: pick('sort', LOOP_SORTS),
-		dir: pick('dir', ['asc', 'desc'] as const)
+		dir: pick('dir', LOOP_DIRS)
 	};
 }
 

@@ -13,22 +13,9 @@
  * then …200000_sort_include with the INCLUDE columns.
  */
 import { VERDICT_RANK } from '../../compliance/judge';
+import type { LoopSort } from '../../registry/loop-filters';
 
-export const LOOP_SORTS = [
-	'key',
-	'name',
-	'product',
-	'class',
-	'owner',
-	'verdict',
-	'updatedAt',
-	'phaseMargin',
-	'upperGainMargin',
-	'delayMargin',
-	'modulusMargin',
-	'shortfall'
-] as const;
-export type LoopSort = (typeof LOOP_SORTS)[number];
+export { LOOP_SORTS, type LoopSort } from '../../registry/loop-filters';
 
 const rankCase = (alias: string) =>
 	`case ${alias}verdict ${Object.entries(VERDICT_RANK)
