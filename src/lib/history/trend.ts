@@ -10,7 +10,8 @@ import type { MarginsResult, WorstCase } from '../margins/types';
 import { withUnit, type Unit } from './format';
 import type { HistoryRequirement, HistoryRevision } from './types';
 
-export type PanelKey = 'phaseMargin' | 'upperGainMargin' | 'delayMargin' | 'modulusMargin';
+export type PanelKey =
+	'phaseMargin' | 'upperGainMargin' | 'delayMargin' | 'delayMarginSamples' | 'modulusMargin';
 export type PointStatus = 'pass' | 'fail' | 'no-target' | 'unstable' | 'rejected' | 'pending';
 
 export interface TrendPoint {
@@ -93,6 +94,16 @@ export const PANELS: PanelDef[] = [
 		target: simple('minDelayMarginSeconds', 's')
 	},
 	{
+		// sampled loops: shown when a requirement version asks for it (see trendPanels)
+		key: 'delayMarginSamples',
+		title: 'Delay margin (samples)',
+		unit: 'samples',
+		criteria: ['delayMarginSamples'],
+		value: (w) => w.delayMarginSamples,
+		nullText: 'no gain crossover',
+		target: simple('minDelayMarginSamples', 'samples')
+	},
+	{
 		key: 'modulusMargin',
 		title: 'Modulus margin',
 		unit: '',
@@ -159,11 +170,24 @@ function point(
 	};
 }
 
+/**
+ * The panels of a loop: the delay margin in samples when any requirement version of its class
+ * sets a minimum in samples, and in seconds unless only samples are ever asked for.
+ */
+function panelsFor(requirements: HistoryRequirement[]): PanelDef[] {
+	const asks = (field: keyof Targets) => requirements.some((q) => num(q.targets[field]) !== null);
+	const samples = asks('minDelayMarginSamples');
+	const seconds = !samples || asks('minDelayMarginSeconds');
+	return PANELS.filter(
+		(def) => (def.key !== 'delayMarginSamples' || samples) && (def.key !== 'delayMargin' || seconds)
+	);
+}
+
 export function trendPanels(
 	revisions: HistoryRevision[],
 	requirements: HistoryRequirement[]
 ): TrendPanel[] {
-	return PANELS.map((def) => ({
+	return panelsFor(requirements).map((def) => ({
 		key: def.key,
 		title: def.title,
 		unit: def.unit,

@@ -121,4 +121,34 @@ describe('trend panels', () => {
 			['no-target', false, '10.0 dB']
 		]);
 	});
+
+	it('plots the delay margin in samples when the class asks for it, in seconds otherwise', () => {
+		const sampled = worst({ delayMarginSeconds: 0.0004, delayMarginSamples: 4 });
+		const keys = (q: HistoryRequirement[]) =>
+			trendPanels([revision(1, 1, sampled)], q).map((p) => p.key);
+		expect(keys(reqs)).toEqual(['phaseMargin', 'upperGainMargin', 'delayMargin', 'modulusMargin']);
+		const samplesOnly = [requirement(1, '2026-01-01T00:00:00Z', { minDelayMarginSamples: '5' })];
+		expect(keys(samplesOnly)).toEqual([
+			'phaseMargin',
+			'upperGainMargin',
+			'delayMarginSamples',
+			'modulusMargin'
+		]);
+		const both = [
+			requirement(1, '2026-01-01T00:00:00Z', { minDelayMarginSeconds: '0.0002' }),
+			requirement(2, '2026-02-01T00:00:00Z', { minDelayMarginSamples: '3' })
+		];
+		expect(keys(both)).toContain('delayMargin');
+		// each point judged against its own version: v1 sets no samples target, v2 asks for 3
+		const panel = trendPanels([revision(1, 1, sampled), revision(2, 2, sampled)], both).find(
+			(p) => p.key === 'delayMarginSamples'
+		)!;
+		expect(panel.unit).toBe('samples');
+		expect(panel.points.map((p) => [p.value, p.status, p.targetText])).toEqual([
+			[4, 'no-target', 'no target'],
+			[4, 'pass', 'at least 3 samples']
+		]);
+		const short = trendPanels([revision(1, 1, sampled)], samplesOnly)[2];
+		expect(short.points[0].status).toBe('fail');
+	});
 });

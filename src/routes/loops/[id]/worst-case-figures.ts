@@ -42,7 +42,12 @@ export function worstCaseFigures(w: WorstCase): Figure[] {
 		},
 		{
 			label: 'Delay margin',
-			value: figure(w.delayMarginSeconds, ' s', '—'),
+			// a sampled loop's also in samples, the unit its class may set the target in
+			value:
+				figure(w.delayMarginSeconds, ' s', '—') +
+				(w.delayMarginSeconds !== null && w.delayMarginSamples !== null
+					? ` (${formatNumber(w.delayMarginSamples, 4)} samples)`
+					: ''),
 			from: w.from.delayMarginSeconds
 		},
 		{
