@@ -1,5 +1,4 @@
 import type { ServerInit } from '@sveltejs/kit';
-import { sequence } from '@sveltejs/kit/hooks';
 import { building } from '$app/environment';
 import { handleRequestId } from '$lib/server/hooks/request-id';
 import { handleSecurityHeaders } from '$lib/server/hooks/security-headers';
@@ -7,6 +6,7 @@ import { handleAuth } from '$lib/server/hooks/auth';
 import { handleCsrf } from '$lib/server/hooks/csrf';
 import { handleOutage } from '$lib/server/hooks/outage';
 import { handleRegistryWrites } from '$lib/server/hooks/registry-writes';
+import { chain } from '$lib/server/hooks/chain';
 import { authSecret, databaseUrl, oidcSettings, registryCacheEnabled } from '$lib/server/config';
 import { startRegistryChanges, stopRegistryChanges } from '$lib/server/db/registry-changes';
 import { closeOrm } from '$lib/server/db/orm';
@@ -23,7 +23,7 @@ export const init: ServerInit = async () => {
 	if (!building && registryCacheEnabled()) void startRegistryChanges(databaseUrl());
 };
 
-export const handle = sequence(
+export const handle = chain(
 	handleRequestId,
 	handleSecurityHeaders,
 	handleOutage,

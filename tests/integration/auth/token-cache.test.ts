@@ -47,6 +47,17 @@ beforeEach(async () => {
 });
 
 describe('bearer tokens kept between changes', () => {
+	it('make an entity manager only to look a token up or to stamp it', async () => {
+		const value = await newToken('lazy');
+		await settled();
+		let forks = 0;
+		const source = async () => (forks++, r.em());
+		expect((await resolveToken(source, value))?.user.id).toBe(r.users.engineer.id);
+		expect(forks).toBe(2); // the lookup, and the stamp of a token never used
+		expect((await resolveToken(source, value))?.user.id).toBe(r.users.engineer.id);
+		expect(forks).toBe(2); // kept and stamped within the minute: no fork
+	});
+
 	it('are reused while nothing is notified, and refused once a revocation is', async () => {
 		const value = await newToken('kept');
 		await settled();

@@ -101,6 +101,22 @@ describe('pages of the loop list kept between writes', () => {
 		expect(changeStamp(r.em())).toBe(stamp);
 	});
 
+	it('make an entity manager only when a page has to be read', async () => {
+		let forks = 0;
+		const source = async () => (forks++, r.em());
+		const f: LoopFilters = { class: 'speed', sort: 'name', dir: 'desc' };
+		const first = await listLoopsBody(source, f, paging);
+		expect(forks).toBe(1);
+		const again = await listLoopsBody(source, f, paging);
+		expect(forks).toBe(1); // the kept page: no fork
+		expect(again).toBe(first);
+		const stamp = changeStamp(r.em());
+		await exec(`update loop set note = 'forked' where key = 'a-ok'`);
+		await notified(stamp);
+		await listLoopsBody(source, f, paging);
+		expect(forks).toBe(2);
+	});
+
 	it('keep at most MAX_BYTES, dropping the oldest', async () => {
 		const big = 'x'.repeat(MAX_BYTES / 2 / 3 + 1); // a third of the budget and a little more
 		for (const key of ['one', 'two', 'three'])

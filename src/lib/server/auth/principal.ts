@@ -1,4 +1,5 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
+import type { EmSource } from '../db/registry-changes';
 import type { User } from '../db/entities';
 import { isUuid } from '../registry/common';
 import { scopesForRole, type Scope } from '../../auth/roles';
@@ -39,10 +40,7 @@ export async function principalFromSession(
 	return toLocals(user, scopesForRole(user.role));
 }
 
-export async function principalFromBearer(
-	em: EntityManager,
-	value: string
-): Promise<Principal | null> {
+export async function principalFromBearer(em: EmSource, value: string): Promise<Principal | null> {
 	const found = await resolveToken(em, value);
 	return found && toLocals(found.user, found.scopes);
 }

@@ -5,7 +5,7 @@ import { effectiveScopes, scopesForRole, type Scope } from '../../auth/roles';
 import { recordAudit } from '../audit/audit';
 import { Forbidden, Invalid, NotFound } from '../errors';
 import { preparedRows } from '../db/prepared';
-import { remembered } from '../db/registry-changes';
+import { emOf, remembered, type EmSource } from '../db/registry-changes';
 import { newTokenValue, sha256, TOKEN_PREFIX } from './secrets';
 
 export interface TokenRow {
@@ -155,22 +155,20 @@ async function lookupToken(em: EntityManager, hash: string): Promise<KnownToken 
  * one indexed query (no entity hydration). "Last used" is written at most once a minute per
  * token: it needs no finer grain, and a busy pipeline should not turn every API read into a write.
  */
-export async function resolveToken(
-	em: EntityManager,
-	value: string
-): Promise<TokenPrincipal | null> {
+export async function resolveToken(em: EmSource, value: string): Promise<TokenPrincipal | null> {
 	if (!value.startsWith(TOKEN_PREFIX) || value.length > 200) return null;
 	const hash = sha256(value);
-	const known = await remembered(em, `token ${hash}`, () => lookupToken(em, hash));
+	const known = await remembered(em, `token ${hash}`, async () =>
+		lookupToken(await emOf(em), hash)
+	);
 	if (!known) return null;
 	if (Date.now() - known.usedAt >= STAMP_EVERY_MS) {
 		known.usedAt = Date.now();
-		await em
-			.getConnection()
-			.execute(
-				`update api_token set last_used_at = now() where id = ? and (last_used_at is null or last_used_at < now() - interval '1 minute')`,
-				[known.id]
-			);
+		const conn = (await emOf(em)).getConnection();
+		await conn.execute(
+			`update api_token set last_used_at = now() where id = ? and (last_used_at is null or last_used_at < now() - interval '1 minute')`,
+			[known.id]
+		);
 	}
 	return known.principal;
 }

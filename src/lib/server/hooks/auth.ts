@@ -1,10 +1,10 @@
 import type { Handle } from '@sveltejs/kit';
-import { sequence } from '@sveltejs/kit/hooks';
 import { handleAuthJs } from '../auth/authjs';
 import { isApiPath } from '../auth/guard';
 import { principalFromBearer, principalFromSession, type Principal } from '../auth/principal';
 import { forkEm } from '../db/orm';
 import { apiError } from '../http/respond';
+import { chain } from './chain';
 
 /** API routes open to anonymous callers; each route still says so itself (see the guard test). */
 const PUBLIC_API = new Set(['/api/health', '/api/storage-events']);
@@ -19,7 +19,7 @@ const handleLocals: Handle = async ({ event, resolve }) => {
 	let principal: Principal | null = null;
 	if (api && authorization !== null) {
 		const bearer = /^Bearer\s+(\S+)\s*$/i.exec(authorization)?.[1];
-		principal = bearer ? await principalFromBearer(await forkEm(), bearer) : null;
+		principal = bearer ? await principalFromBearer(forkEm, bearer) : null;
 		// A wrong token is an error even on public routes: the caller meant to authenticate.
 		if (!principal) return apiError(401, 'unauthenticated', 'The API token is not valid.');
 	} else {
@@ -76,4 +76,4 @@ const handleAuthRoutes: Handle = async (input) => {
 		: response;
 };
 
-export const handleAuth: Handle = sequence(handleCookieSecurity, handleAuthRoutes, handleLocals);
+export const handleAuth: Handle = chain(handleCookieSecurity, handleAuthRoutes, handleLocals);

@@ -8,7 +8,7 @@ import type { CriterionResult, Verdict } from '../../compliance/judge';
 import { fromWith, JOINS, joinsOf, orderOf, whereOf, type LoopFilters } from './loop-query';
 import { offsetOf, type PageOf, type Paging } from './common';
 import { preparedRows } from '../db/prepared';
-import { remembered, shareResult } from '../db/registry-changes';
+import { emOf, remembered, shareResult, type EmSource } from '../db/registry-changes';
 import type { LoopView } from './loops';
 
 /** A row of the loop list: the loop, its worst-case margins and every criterion it was judged on. */
@@ -299,7 +299,7 @@ const UTF8 = new TextEncoder();
  * depend on who asks: every role reads every loop.
  */
 export async function listLoopsBody(
-	em: EntityManager,
+	em: EmSource,
 	f: LoopFilters,
 	paging: Paging
 ): Promise<Uint8Array<ArrayBuffer>> {
@@ -310,7 +310,7 @@ export async function listLoopsBody(
 		em,
 		key,
 		async () => {
-			const page = await pageJson(em, f, paging);
+			const page = await pageJson(await emOf(em), f, paging);
 			until = page.until;
 			return UTF8.encode(page.text);
 		},

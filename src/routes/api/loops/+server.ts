@@ -15,8 +15,9 @@ export const GET = (async (event) =>
 	api(async () => {
 		requireScope(event, 'read');
 		const params = event.url.searchParams;
-		// The page's JSON from the loops' stored items, kept between writes (listLoopsBody).
-		const body = await listLoopsBody(await forkEm(), loopFiltersFrom(params), pagingFrom(params));
+		// The page's JSON from the loops' stored items, kept between writes (listLoopsBody); a
+		// fork only when it has to be read.
+		const body = await listLoopsBody(forkEm, loopFiltersFrom(params), pagingFrom(params));
 		return new Response(body, {
 			headers: { 'content-type': 'application/json', 'content-length': String(body.byteLength) }
 		});
