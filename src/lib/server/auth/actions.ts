@@ -37,8 +37,7 @@ export async function signInWithPasswordForm(
 		);
 	} catch (error) {
 		if (isRedirect(error)) redirect(303, next);
-		if (error instanceof CredentialsSignin)
-			return error.code === 'rate_limited' ? 'rate_limited' : 'invalid';
+		if (error instanceof CredentialsSignin) return error.code === 'rate_limited' ? 'rate_limited' : 'invalid';
 		throw error;
 	}
 	// Auth.js always answers with a redirect or an error; reaching here would be a bug in it.

@@ -63,11 +63,7 @@ function oidcProvider(settings: OidcSettings): OIDCConfig<Profile> {
 		checks: ['pkce', 'state', 'nonce'],
 		// Claims from the userinfo endpoint: many IdPs leave e-mail and name out of the id token.
 		idToken: false,
-		profile: (profile) => ({
-			id: profile.sub ?? undefined,
-			email: profile.email,
-			name: profile.name
-		})
+		profile: (profile) => ({ id: profile.sub ?? undefined, email: profile.email, name: profile.name })
 	};
 }
 
@@ -127,8 +123,4 @@ function config(event: RequestEvent): SvelteKitAuthConfig {
 	};
 }
 
-export const {
-	handle: handleAuthJs,
-	signIn,
-	signOut
-} = SvelteKitAuth(async (event) => config(event));
+export const { handle: handleAuthJs, signIn, signOut } = SvelteKitAuth(async (event) => config(event));

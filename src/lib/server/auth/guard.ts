@@ -8,9 +8,7 @@ import { atLeast, type Role, type Scope } from '../../auth/roles';
 import { Forbidden, Unauthenticated } from '../errors';
 
 /** What the guards read: any RequestEvent fits (and a test can build one by hand). */
-type GuardEvent = Pick<RequestEvent, 'url' | 'request'> & {
-	locals: Pick<App.Locals, 'user' | 'scopes'>;
-};
+type GuardEvent = Pick<RequestEvent, 'url' | 'request'> & { locals: Pick<App.Locals, 'user' | 'scopes'> };
 export type CurrentUser = NonNullable<App.Locals['user']>;
 
 export function isApiPath(url: URL): boolean {
@@ -25,11 +23,9 @@ function deny(event: GuardEvent, message: string): never {
 export function requireUser(event: GuardEvent): CurrentUser {
 	const user = event.locals.user;
 	if (user) return user;
-	if (isApiPath(event.url))
-		throw new Unauthenticated('Sign in or send an API token (Authorization: Bearer …).');
+	if (isApiPath(event.url)) throw new Unauthenticated('Sign in or send an API token (Authorization: Bearer …).');
 	// After signing in a GET comes back to the page; a form post's target is not worth replaying.
-	const back =
-		event.request.method === 'GET' ? event.url.pathname + event.url.search : event.url.pathname;
+	const back = event.request.method === 'GET' ? event.url.pathname + event.url.search : event.url.pathname;
 	redirect(303, `/signin?next=${encodeURIComponent(back)}`);
 }
 

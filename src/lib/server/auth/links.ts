@@ -24,11 +24,7 @@ export async function issueLink(
 	input: { userId: string; purpose: LinkPurpose; createdBy: string | null }
 ): Promise<string> {
 	const now = new Date();
-	await em.nativeUpdate(
-		OneTimeLinkSchema,
-		{ user: input.userId, purpose: input.purpose, usedAt: null },
-		{ usedAt: now }
-	);
+	await em.nativeUpdate(OneTimeLinkSchema, { user: input.userId, purpose: input.purpose, usedAt: null }, { usedAt: now });
 	const value = randomValue();
 	em.create(OneTimeLinkSchema, {
 		id: randomUUID(),
@@ -49,11 +45,7 @@ export interface UsableLink {
 }
 
 /** The link's purpose and person if it can still be used; null otherwise (the reason is nobody's business). */
-export async function findUsableLink(
-	em: EntityManager,
-	value: string,
-	lock = false
-): Promise<UsableLink | null> {
+export async function findUsableLink(em: EntityManager, value: string, lock = false): Promise<UsableLink | null> {
 	if (!/^[\w-]{20,100}$/.test(value)) return null;
 	const link = await em.findOne(
 		OneTimeLinkSchema,

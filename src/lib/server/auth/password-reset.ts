@@ -19,11 +19,7 @@ const RESETS_PER_HOUR = 3;
 export async function requestPasswordReset(em: EntityManager, email: string): Promise<void> {
 	const issued = await em.transactional(async (tx) => {
 		// Row lock: requests for one address queue here, so the hourly bound holds under bursts.
-		const user = await tx.findOne(
-			UserSchema,
-			{ email: normalizeEmail(email) },
-			{ lockMode: LockMode.PESSIMISTIC_WRITE }
-		);
+		const user = await tx.findOne(UserSchema, { email: normalizeEmail(email) }, { lockMode: LockMode.PESSIMISTIC_WRITE });
 		if (!user || !user.active) return null;
 		// Bound the mail anyone can make us send to someone else's inbox.
 		const recent = await tx.count(OneTimeLinkSchema, {
@@ -32,21 +28,11 @@ export async function requestPasswordReset(em: EntityManager, email: string): Pr
 			createdAt: { $gt: new Date(Date.now() - 3600_000) }
 		});
 		if (recent >= RESETS_PER_HOUR) return null;
-		const value = await issueLink(tx, {
-			userId: user.id,
-			purpose: 'password_reset',
-			createdBy: null
-		});
+		const value = await issueLink(tx, { userId: user.id, purpose: 'password_reset', createdBy: null });
 		return { to: user.email, value };
 	});
 	if (!issued) return;
-	await sendMail(
-		passwordResetMail({
-			to: issued.to,
-			url: linkUrl(issued.value),
-			minutes: LINK_TTL_MINUTES.password_reset
-		})
-	);
+	await sendMail(passwordResetMail({ to: issued.to, url: linkUrl(issued.value), minutes: LINK_TTL_MINUTES.password_reset }));
 }
 
 /**

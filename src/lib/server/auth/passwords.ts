@@ -11,10 +11,7 @@ export function hashPassword(password: string): Promise<string> {
 let decoy: Promise<string> | undefined;
 
 /** True when `password` matches `stored`; always spends one argon2 verification. */
-export async function verifyPassword(
-	stored: string | null | undefined,
-	password: string
-): Promise<boolean> {
+export async function verifyPassword(stored: string | null | undefined, password: string): Promise<boolean> {
 	if (!stored) {
 		decoy ??= hash('decoy password that never matches anything');
 		await verify(await decoy, password).catch(() => false);

@@ -21,11 +21,7 @@ export interface Attempt {
  * Record an attempt as failed *before* checking the password, then count: concurrent guesses
  * each see the others, so a burst cannot slip past the limit between check and write.
  */
-export async function beginAttempt(
-	em: EntityManager,
-	email: string,
-	address: string
-): Promise<Attempt> {
+export async function beginAttempt(em: EntityManager, email: string, address: string): Promise<Attempt> {
 	const conn = em.getConnection();
 	const [row] = await conn.execute<{ id: string }[]>(
 		`insert into sign_in_attempt (email, address, succeeded, at) values (?, ?, false, now()) returning id`,
@@ -58,7 +54,5 @@ export async function beginAttempt(
 }
 
 export async function markSucceeded(em: EntityManager, attempt: Attempt): Promise<void> {
-	await em
-		.getConnection()
-		.execute(`update sign_in_attempt set succeeded = true where id = ?`, [attempt.id]);
+	await em.getConnection().execute(`update sign_in_attempt set succeeded = true where id = ?`, [attempt.id]);
 }

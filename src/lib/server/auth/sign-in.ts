@@ -15,13 +15,10 @@ export interface SignedInUser {
 }
 
 export type PasswordOutcome =
-	{ ok: true; user: SignedInUser } | { ok: false; reason: 'invalid' | 'rate_limited' };
+	| { ok: true; user: SignedInUser }
+	| { ok: false; reason: 'invalid' | 'rate_limited' };
 
-const signedIn = (user: User): SignedInUser => ({
-	id: user.id,
-	email: user.email,
-	name: user.name
-});
+const signedIn = (user: User): SignedInUser => ({ id: user.id, email: user.email, name: user.name });
 
 /**
  * Check an e-mail and password. Unknown address, wrong password, no password set, deactivated:
@@ -55,10 +52,7 @@ export interface SsoProfile {
  * An admin who wants someone to start with another role invites the address first; the
  * invitation created the user with that role, so it is found here. Null refuses the sign-in.
  */
-export async function signInWithSso(
-	em: EntityManager,
-	profile: SsoProfile
-): Promise<SignedInUser | null> {
+export async function signInWithSso(em: EntityManager, profile: SsoProfile): Promise<SignedInUser | null> {
 	// An address the IdP itself has not verified could belong to anyone.
 	if (!profile.email || profile.emailVerified === false) return null;
 	const email = normalizeEmail(profile.email);

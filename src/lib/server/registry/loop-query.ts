@@ -5,10 +5,10 @@
  */
 import { VERDICTS, type Verdict } from '../../compliance/judge';
 import { CRITERIA, type Criterion } from '../../compliance/criteria';
-import { LOOP_SORTS, orderSql, SORT_KEYS, type LoopSort } from './loop-sort-keys';
+import { orderSql, SORT_KEYS, type LoopSort } from './loop-sort-keys';
 import { Invalid } from '../errors';
 import { isUuid } from './common';
-import { LOOP_ARCHIVED, LOOP_DIRS } from '../../registry/loop-filters';
+import { LOOP_ARCHIVED, LOOP_DIRS, LOOP_SORTS } from '../../registry/loop-filters';
 
 export { LOOP_SORTS, type LoopSort } from './loop-sort-keys';
 
